@@ -1,0 +1,40 @@
+// The production entry: one HTTP server that serves the built SvelteKit app and socket.io.
+import { createServer } from 'node:http';
+import { attachRealtime } from './realtime';
+
+const host = process.env.HOST ?? '127.0.0.1';
+const port = Number(process.env.PORT ?? 3000);
+const databaseUrl = process.env.DATABASE_URL;
+if (!databaseUrl) {
+	console.error('DATABASE_URL is not set. Use `npm start`, or see .env.example.');
+	process.exit(1);
+}
+process.env.ORIGIN ??= `http://${host === '0.0.0.0' ? '127.0.0.1' : host}:${port}`;
+
+// @ts-expect-error: the build output has no type declarations
+const { handler } = await import('../build/handler.js');
+
+const server = createServer();
+server.on('request', handler);
+// socket.io wraps the existing request listeners, so it is attached after the app handler.
+const realtime = attachRealtime(server, { databaseUrl, origin: process.env.ORIGIN! });
+
+server.listen(port, host, () => {
+	const a = server.address();
+	const actual = typeof a === 'object' && a ? a.port : port;
+	console.log(`Spotface listening on http://${host}:${actual}`);
+});
+
+let closing = false;
+async function shutdown(signal: string) {
+	if (closing) return;
+	closing = true;
+	console.log(`${signal}: closing`);
+	const force = setTimeout(() => process.exit(0), 5000);
+	force.unref();
+	await realtime.close().catch(() => {});
+	server.close(() => process.exit(0));
+	server.closeAllConnections?.();
+}
+process.on('SIGINT', () => void shutdown('SIGINT'));
+process.on('SIGTERM', () => void shutdown('SIGTERM'));

@@ -1,0 +1,10 @@
+export { default as Button } from './button/Button.svelte';
+export { default as Field } from './field/Field.svelte';
+export { default as Select } from './field/Select.svelte';
+export { default as EmptyState } from './empty-state/EmptyState.svelte';
+export { default as Badge } from './badge/Badge.svelte';
+export { default as Alert } from './alert/Alert.svelte';
+export { default as PageHeader } from './page-header/PageHeader.svelte';
+export { default as Card } from './card/Card.svelte';
+export { default as DataTable } from './data-table/DataTable.svelte';
+export { default as SafetyNote } from './safety-note/SafetyNote.svelte';

@@ -1,0 +1,15 @@
+import type { Action } from '$lib/server/auth/guard';
+
+// The main navigation. Each feature adds its entry; `action` hides links the role cannot use
+// (the routes themselves are guarded on the server).
+export interface NavItem {
+	href: string;
+	label: string;
+	action: Action;
+}
+
+export const NAV: NavItem[] = [
+	{ href: '/', label: 'Overview', action: 'organisation.read' },
+	{ href: '/settings/members', label: 'Team', action: 'member.read' },
+	{ href: '/settings/organisation', label: 'Settings', action: 'organisation.read' }
+];

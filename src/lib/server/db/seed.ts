@@ -1,0 +1,40 @@
+// Demo data: an invented plant operator, "Harrowgate Water Services", and its team.
+// Idempotent: running it again changes nothing that exists.
+import type { DB } from './index';
+import type { Role } from './types';
+import { hashPassword } from '../auth/password';
+
+export const DEMO_PASSWORD = 'spotface-demo';
+export const DEMO_ORG = 'Harrowgate Water Services (demo)';
+export const DEMO_USERS: Array<{ email: string; name: string; role: Role }> = [
+	{ email: 'admin@harrowgate.example', name: 'Morag Pellow', role: 'admin' },
+	{ email: 'engineer@harrowgate.example', name: 'Idris Calloway', role: 'engineer' },
+	{ email: 'tech@harrowgate.example', name: 'Senna Okoro', role: 'technician' },
+	{ email: 'viewer@harrowgate.example', name: 'Plant owner (read only)', role: 'viewer' }
+];
+
+export type SeedHook = (db: DB, organisationId: string) => Promise<void>;
+
+/** Seeds the demo organisation and users; later features pass hooks to add their demo rows. */
+export async function seedDemo(db: DB, hooks: SeedHook[] = []) {
+	let org = await db.selectFrom('organisation').select('id').where('name', '=', DEMO_ORG).executeTakeFirst();
+	if (!org) org = await db.insertInto('organisation').values({ name: DEMO_ORG }).returning('id').executeTakeFirstOrThrow();
+	const hash = await hashPassword(DEMO_PASSWORD);
+	for (const u of DEMO_USERS) {
+		let user = await db.selectFrom('app_user').select('id').where('email', '=', u.email).executeTakeFirst();
+		if (!user) {
+			user = await db
+				.insertInto('app_user')
+				.values({ id: `demo-${u.role}`, email: u.email, name: u.name, password_hash: hash })
+				.returning('id')
+				.executeTakeFirstOrThrow();
+		}
+		await db
+			.insertInto('member')
+			.values({ organisation_id: org.id, user_id: user.id, role: u.role })
+			.onConflict((oc) => oc.columns(['organisation_id', 'user_id']).doNothing())
+			.execute();
+	}
+	for (const hook of hooks) await hook(db, org.id);
+	return org.id;
+}

@@ -1,0 +1,88 @@
+import { error, fail } from '@sveltejs/kit';
+import { invitationCreateSchema, memberRoleSchema } from '$lib/schemas/auth';
+import { parseForm } from '$lib/schemas/form';
+import { requirePage } from '$lib/server/auth/require';
+import { can } from '$lib/server/auth/guard';
+import { context } from '$lib/server/context';
+import * as members from '$lib/server/db/members';
+import * as invitations from '$lib/server/db/invitations';
+import { AccountError, invite } from '$lib/server/auth/accounts';
+import { record } from '$lib/server/db/audit';
+import type { Actions, PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async ({ locals, url }) => {
+	const viewer = requirePage(locals, 'member.read', url);
+	const db = context().handle.db;
+	const canInvite = can(viewer.role, 'member.invite');
+	const [list, open] = await Promise.all([
+		members.list(db, viewer.organisationId),
+		canInvite ? invitations.listOpen(db, viewer.organisationId) : Promise.resolve([])
+	]);
+	return {
+		members: list.map((m) => ({ id: m.id, name: m.name, email: m.email, role: m.role, isMe: m.user_id === viewer.userId })),
+		invitations: open,
+		canInvite,
+		canChangeRoles: can(viewer.role, 'member.change-role')
+	};
+};
+
+export const actions: Actions = {
+	invite: async ({ locals, request, url }) => {
+		const viewer = requirePage(locals, 'member.invite', url);
+		const form = parseForm(await request.formData(), invitationCreateSchema);
+		if (!form.ok) return fail(400, { action: 'invite', values: form.values, errors: form.errors });
+		const { handle, mailer, config } = context();
+		try {
+			await invite(handle.db, mailer, config.origin, {
+				organisationId: viewer.organisationId,
+				organisationName: viewer.organisationName,
+				invitedBy: { id: viewer.userId, name: viewer.name },
+				email: form.data.email,
+				role: form.data.role
+			});
+		} catch (e) {
+			if (e instanceof AccountError) return fail(e.status, { action: 'invite', values: form.values, errors: { [e.field ?? '_']: e.message } });
+			throw e;
+		}
+		return { action: 'invite', invited: form.data.email };
+	},
+	revoke: async ({ locals, request, url }) => {
+		const viewer = requirePage(locals, 'member.invite', url);
+		const id = String((await request.formData()).get('id') ?? '');
+		const db = context().handle.db;
+		if (!(await invitations.revoke(db, viewer.organisationId, id))) error(404, 'No such open invitation');
+		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'invitation.revoked', subjectType: 'invitation', subjectId: id });
+		return { action: 'revoke', revoked: true };
+	},
+	role: async ({ locals, request, url }) => {
+		const viewer = requirePage(locals, 'member.change-role', url);
+		const data = await request.formData();
+		const id = String(data.get('id') ?? '');
+		const form = parseForm(data, memberRoleSchema);
+		if (!form.ok) return fail(400, { action: 'role', id, errors: form.errors });
+		const db = context().handle.db;
+		try {
+			const changed = await members.changeRole(db, viewer.organisationId, id, form.data.role);
+			if (!changed) error(404, 'No such member');
+		} catch (e) {
+			if (e instanceof members.LastAdminError) return fail(409, { action: 'role', id, errors: { role: e.message } });
+			throw e;
+		}
+		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'member.role-changed', subjectType: 'member', subjectId: id, data: { role: form.data.role } });
+		return { action: 'role', id, saved: true };
+	},
+	remove: async ({ locals, request, url }) => {
+		const viewer = requirePage(locals, 'member.remove', url);
+		const id = String((await request.formData()).get('id') ?? '');
+		const db = context().handle.db;
+		try {
+			const removed = await members.remove(db, viewer.organisationId, id);
+			if (!removed) error(404, 'No such member');
+		} catch (e) {
+			if (e instanceof members.LastAdminError) return fail(409, { action: 'remove', id, errors: { _: e.message } });
+			throw e;
+		}
+		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'member.removed', subjectType: 'member', subjectId: id });
+		return { action: 'remove', removed: true };
+	}
+};

@@ -1,0 +1,43 @@
+import { sveltekit } from '@sveltejs/kit/vite';
+import tailwindcss from '@tailwindcss/vite';
+import { defineConfig } from 'vitest/config';
+import { collabDevPlugin } from './server/dev-plugin';
+
+export default defineConfig({
+	plugins: [tailwindcss(), sveltekit(), collabDevPlugin()],
+	test: {
+		projects: [
+			{
+				extends: true,
+				test: {
+					name: 'unit',
+					include: ['tests/unit/**/*.test.ts'],
+					environment: 'node'
+				}
+			},
+			{
+				extends: true,
+				test: {
+					name: 'integration',
+					include: ['tests/integration/**/*.test.ts'],
+					environment: 'node',
+					globalSetup: ['tests/helpers/global-setup.ts'],
+					testTimeout: 60_000,
+					hookTimeout: 120_000
+				}
+			},
+			{
+				extends: true,
+				test: {
+					name: 'e2e',
+					include: ['tests/e2e/**/*.test.ts'],
+					environment: 'node',
+					globalSetup: ['tests/helpers/global-setup.ts'],
+					testTimeout: 120_000,
+					hookTimeout: 120_000,
+					fileParallelism: false
+				}
+			}
+		]
+	}
+});
