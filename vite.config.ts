@@ -19,9 +19,9 @@ export default defineConfig({
 				extends: true,
 				test: {
 					name: 'integration',
+					globalSetup: ['tests/helpers/global-setup.ts'],
 					include: ['tests/integration/**/*.test.ts'],
 					environment: 'node',
-					globalSetup: ['tests/helpers/global-setup.ts'],
 					testTimeout: 60_000,
 					hookTimeout: 120_000
 				}
@@ -30,9 +30,9 @@ export default defineConfig({
 				extends: true,
 				test: {
 					name: 'e2e',
+					globalSetup: ['tests/helpers/global-setup.ts'],
 					include: ['tests/e2e/**/*.test.ts'],
 					environment: 'node',
-					globalSetup: ['tests/helpers/global-setup.ts'],
 					testTimeout: 120_000,
 					hookTimeout: 120_000,
 					fileParallelism: false

@@ -102,8 +102,8 @@ function pointStrictlyInside(p: Vec2, polygon: Vec2[]): boolean {
 		const [xi, yi] = polygon[i];
 		const [xj, yj] = polygon[j];
 		if (yi > p[1] !== yj > p[1]) {
-			const xCross = ((xj - xi) * (p[1] - yi)) / (yj - yi) + xi;
-			if (p[0] < xCross) inside = !inside;
+			// Compared as offsets from the corner so that moving everything leaves the answer unchanged.
+			if (p[0] - xi < ((xj - xi) * (p[1] - yi)) / (yj - yi)) inside = !inside;
 		}
 	}
 	return inside;

@@ -1,0 +1,29 @@
+// npm test: the same set-up as npm start for a separate test cluster, then every test
+// (unit, integration against PostgreSQL, browser in Debian's Chromium). Non-zero exit on failure.
+import { spawnSync } from 'node:child_process';
+import { ensureChromium, ensureDependencies } from './deps.mjs';
+import { startCluster } from './pg.mjs';
+import { log, runStep } from './common.mjs';
+
+ensureDependencies(log);
+ensureChromium(log);
+const cluster = startCluster({
+	dir: '.data/pg-test',
+	port: Number(process.env.SPOTFACE_TEST_PG_PORT ?? 54339),
+	dbName: 'spotface_test',
+	log
+});
+let code = 1;
+try {
+	runStep('Building the app', 'npx', ['vite', 'build', '--logLevel', 'error']);
+	log('Running every test: unit, integration, browser');
+	const r = spawnSync('npx', ['vitest', 'run', ...process.argv.slice(2)], {
+		stdio: 'inherit',
+		env: { ...process.env, SPOTFACE_TEST_PG_URL: cluster.url, CHROMIUM_PATH: '/usr/bin/chromium' }
+	});
+	code = r.status ?? 1;
+} finally {
+	cluster.stop();
+}
+log(code === 0 ? 'All tests passed.' : `Tests failed (exit ${code}).`);
+process.exit(code);
