@@ -60,7 +60,10 @@ describe('polylineCrossesPolygon', () => {
 		expect(polylineCrossesPolygon([[-5, 5], [5, -5]], square)).toBe(true);
 	});
 	test('touching: a zone corner on a route segment', () => {
-		expect(polylineCrossesPolygon([[0, -5], [20, 15]], [[12, 5], [15, 2], [18, 5], [15, 8]])).toBe(true); // (15, 10)? no: corner (18,5)? see below
+		// The route runs along y = x − 5; the zone's corner (10, 5) lies on it, the other corners below it.
+		const zone: Vec2[] = [[10, 5], [14, 3], [16, 6], [13, 7]];
+		expect(polylineCrossesPolygon([[0, -5], [20, 15]], zone)).toBe(true);
+		expect(polylineCrossesPolygon([[0, -4], [20, 16]], zone)).toBe(false); // one unit higher: clear
 	});
 	test('collinear overlap along an edge', () => {
 		expect(polylineCrossesPolygon([[-5, 0], [5, 0]], square)).toBe(true);
