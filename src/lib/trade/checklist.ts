@@ -64,8 +64,8 @@ export function installationChecklist(
 			safety: true
 		});
 	}
+	add({ id: 'lockout', phase: 'before', text: 'Machine stopped, isolated and locked out.', safety: true });
 	if (mounting !== 'magnet') {
-		add({ id: 'lockout', phase: 'before', text: 'Machine stopped, isolated and locked out.', safety: true });
 		add({ id: 'eye-protection', phase: 'before', text: 'Eye protection on for grinding and drilling.', safety: true });
 	}
 
