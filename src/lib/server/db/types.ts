@@ -80,6 +80,118 @@ export interface MailOutboxTable {
 	sent_at: Timestamp | null;
 }
 
+// --- Register: sites, areas, supply points, machines, bearings, media ---
+export type MachineKind = 'motor' | 'pump' | 'fan' | 'compressor' | 'gearbox' | 'blower' | 'other';
+export type SpeedMode = 'constant' | 'variable';
+export type Foundation = 'rigid' | 'flexible';
+export type BearingPosition = 'drive_end' | 'non_drive_end';
+export type MediaKind = 'photo' | 'drawing';
+
+export interface SiteTable {
+	id: Generated<string>;
+	organisation_id: string;
+	name: string;
+	code: string | null;
+	address: Generated<string>;
+	notes: Generated<string>;
+	archived_at: Timestamp | null;
+	created_at: Generated<Timestamp>;
+	updated_at: Generated<Timestamp>;
+}
+
+export interface AreaTable {
+	id: Generated<string>;
+	organisation_id: string;
+	site_id: string;
+	name: string;
+	notes: Generated<string>;
+	archived_at: Timestamp | null;
+	created_at: Generated<Timestamp>;
+	updated_at: Generated<Timestamp>;
+}
+
+export interface SupplyPointTable {
+	id: Generated<string>;
+	organisation_id: string;
+	area_id: string;
+	name: string;
+	tag: string | null;
+	voltage_v: Generated<number>;
+	max_current_a: number | null;
+	location_note: Generated<string>;
+	archived_at: Timestamp | null;
+	created_at: Generated<Timestamp>;
+	updated_at: Generated<Timestamp>;
+}
+
+export interface MachineTable {
+	id: Generated<string>;
+	organisation_id: string;
+	site_id: string;
+	area_id: string | null;
+	name: string;
+	tag: string | null;
+	kind: MachineKind;
+	speed_rpm: number | null;
+	speed_mode: Generated<SpeedMode>;
+	speed_signal: Generated<boolean>;
+	power_kw: number | null;
+	foundation: Foundation | null;
+	hazardous_area: Generated<boolean>;
+	hazardous_zone_note: Generated<string>;
+	notes: Generated<string>;
+	archived_at: Timestamp | null;
+	created_at: Generated<Timestamp>;
+	updated_at: Generated<Timestamp>;
+}
+
+export interface BearingTable {
+	id: Generated<string>;
+	organisation_id: string;
+	machine_id: string;
+	position: BearingPosition;
+	component: Generated<string>;
+	designation: Generated<string>;
+	rolling_elements: number | null;
+	rolling_element_d_mm: number | null;
+	pitch_d_mm: number | null;
+	contact_angle_deg: Generated<number>;
+	notes: Generated<string>;
+	archived_at: Timestamp | null;
+	created_at: Generated<Timestamp>;
+	updated_at: Generated<Timestamp>;
+}
+
+export interface MediaTable {
+	id: Generated<string>;
+	organisation_id: string;
+	machine_id: string;
+	kind: MediaKind;
+	caption: Generated<string>;
+	original_filename: string;
+	/** type of the uploaded file, read from its bytes */
+	mime_type: string;
+	display_mime_type: string;
+	thumb_mime_type: string;
+	/** size of the display image */
+	width: number;
+	height: number;
+	thumb_width: number;
+	thumb_height: number;
+	original_bytes: number;
+	display_bytes: number;
+	thumb_bytes: number;
+	original_key: string;
+	display_key: string;
+	thumb_key: string;
+	sha256: string;
+	etag: string;
+	uploaded_by: string | null;
+	archived_at: Timestamp | null;
+	created_at: Generated<Timestamp>;
+	updated_at: Generated<Timestamp>;
+}
+
 // Each feature adds its tables here (one block per aggregate).
 export interface Database {
 	organisation: OrganisationTable;
@@ -90,6 +202,12 @@ export interface Database {
 	password_reset: PasswordResetTable;
 	audit_event: AuditEventTable;
 	mail_outbox: MailOutboxTable;
+	site: SiteTable;
+	area: AreaTable;
+	supply_point: SupplyPointTable;
+	machine: MachineTable;
+	bearing: BearingTable;
+	media: MediaTable;
 }
 
 export type Organisation = Selectable<OrganisationTable>;
@@ -98,3 +216,9 @@ export type Member = Selectable<MemberTable>;
 export type NewMember = Insertable<MemberTable>;
 export type MemberUpdate = Updateable<MemberTable>;
 export type Invitation = Selectable<InvitationTable>;
+export type Site = Selectable<SiteTable>;
+export type Area = Selectable<AreaTable>;
+export type SupplyPoint = Selectable<SupplyPointTable>;
+export type Machine = Selectable<MachineTable>;
+export type Bearing = Selectable<BearingTable>;
+export type Media = Selectable<MediaTable>;
