@@ -10,7 +10,7 @@ export const DEMO_USERS: Array<{ email: string; name: string; role: Role }> = [
 	{ email: 'admin@harrowgate.example', name: 'Morag Pellow', role: 'admin' },
 	{ email: 'engineer@harrowgate.example', name: 'Idris Calloway', role: 'engineer' },
 	{ email: 'tech@harrowgate.example', name: 'Senna Okoro', role: 'technician' },
-	{ email: 'viewer@harrowgate.example', name: 'Plant owner (read only)', role: 'viewer' }
+	{ email: 'viewer@harrowgate.example', name: 'Ffion Marsh', role: 'viewer' }
 ];
 
 export type SeedHook = (db: DB, organisationId: string) => Promise<void>;
