@@ -1,0 +1,153 @@
+// What may be written into a board document: the side panel validates each edit with these
+// before it reaches the model, and the model operations parse again so nothing unchecked is
+// stored. Units: lengths mm (route lengths m), temperatures °C, voltages V, cross-sections mm².
+import { z } from 'zod';
+import { CONDUCTOR_SIZES_MM2, DIRECTIONS, MATERIALS, MOUNTINGS, SURFACES } from '../trade';
+
+export const POINT_STATUSES = ['proposed', 'flagged', 'rejected', 'approved'] as const;
+export type PointStatus = (typeof POINT_STATUSES)[number];
+
+export const POINT_STATUS_LABEL: Record<PointStatus, string> = {
+	proposed: 'Proposed',
+	flagged: 'Flagged for a look',
+	rejected: 'Rejected',
+	approved: 'Approved'
+};
+
+export const ZONE_KINDS = ['shaft', 'coupling', 'belt', 'fan', 'other'] as const;
+export type ZoneKind = (typeof ZONE_KINDS)[number];
+export const ZONE_KIND_LABEL: Record<ZoneKind, string> = {
+	shaft: 'Shaft',
+	coupling: 'Coupling',
+	belt: 'Belt drive',
+	fan: 'Fan',
+	other: 'Other rotating part'
+};
+
+export const FIXINGS = ['clips', 'ties', 'tray', 'conduit', 'none'] as const;
+export type Fixing = (typeof FIXINGS)[number];
+export const FIXING_LABEL: Record<Fixing, string> = {
+	clips: 'Cable clips',
+	ties: 'Cable ties',
+	tray: 'Cable tray',
+	conduit: 'Conduit',
+	none: 'Not fixed'
+};
+
+/** Board coordinates are image pixels; anything beyond this is a bug or a hostile update. */
+const COORD_LIMIT = 1_000_000;
+
+const coord = z
+	.number({ error: 'Position must be a number.' })
+	.refine(Number.isFinite, 'Position must be a finite number.')
+	.refine((n) => Math.abs(n) <= COORD_LIMIT, 'Position is far outside the image.');
+
+export const vec2Schema = z.tuple([coord, coord], { error: 'A corner is an [x, y] pair.' });
+
+function optionalNumber(label: string, unit: string, min: number, max: number, opts: { exclusiveMin?: boolean } = {}) {
+	const range = opts.exclusiveMin ? `above ${min} and up to ${max} ${unit}` : `${min} to ${max} ${unit}`;
+	return z
+		.number({ error: `${label}: enter a number in ${unit}.` })
+		.refine(Number.isFinite, `${label}: enter a number in ${unit}.`)
+		.refine((n) => (opts.exclusiveMin ? n > min : n >= min) && n <= max, `${label} must be ${range}.`)
+		.nullable();
+}
+
+function choice<T extends readonly [string, ...string[]]>(values: T, label: string) {
+	return z.enum(values, { error: `${label}: choose one of the options.` }).nullable();
+}
+
+export const pointFieldsSchema = z.object({
+	label: z.string().trim().min(1, 'Give the point a label, e.g. P1.').max(40, 'A label has at most 40 characters.'),
+	component: z.string().trim().max(120, 'At most 120 characters.'),
+	direction: choice(DIRECTIONS, 'Direction'),
+	/** Entered (tape measure): wins over the board estimate. */
+	distanceToBearingMm: optionalNumber('Distance to bearing', 'mm', 0, 5000),
+	/**
+	 * A line measured on the photo from the seat to the bearing, in image coordinates. Its length
+	 * follows the board scale, so recalibrating updates it; it is an estimate.
+	 */
+	distanceLine: z.tuple([vec2Schema, vec2Schema]).nullable(),
+	surface: choice(SURFACES, 'Surface'),
+	flatDiameterMm: optionalNumber('Flat seat diameter', 'mm', 0, 1000),
+	wallThicknessMm: optionalNumber('Wall thickness', 'mm', 0, 500),
+	mounting: choice(MOUNTINGS, 'Mounting'),
+	material: choice(MATERIALS, 'Housing material'),
+	surfaceTempC: optionalNumber('Surface temperature', '°C', -100, 600),
+	status: z.enum(POINT_STATUSES, { error: 'Status: choose proposed, flagged, rejected or approved.' }),
+	notes: z.string().max(2000, 'Notes have at most 2000 characters.')
+});
+
+export type PointFields = z.infer<typeof pointFieldsSchema>;
+export type PointFieldKey = keyof PointFields;
+export const pointPatchSchema = pointFieldsSchema.partial().strict();
+export type PointPatch = z.infer<typeof pointPatchSchema>;
+
+export const routeFieldsSchema = z.object({
+	pointId: z.string().min(1, 'A route starts at a measurement point.'),
+	/** A 24 V DC supply point from the register, or null with an exit label. */
+	supplyPointId: z.string().min(1).nullable(),
+	/** Where the cable leaves the photo when the supply is out of frame. */
+	exitLabel: z.string().trim().max(80, 'At most 80 characters.'),
+	lengthEnteredM: optionalNumber('Route length', 'm', 0, 10_000, { exclusiveMin: true }),
+	crossSectionMm2: z
+		.number({ error: 'Conductor cross-section: choose a size.' })
+		.refine((n) => CONDUCTOR_SIZES_MM2.some((s) => Math.abs(s - n) < 1e-9), {
+			message: `Conductor cross-section: choose ${CONDUCTOR_SIZES_MM2.join(', ')} mm².`
+		})
+		.nullable(),
+	fixings: choice(FIXINGS, 'Fixings'),
+	supplyV: optionalNumber('Measured supply voltage', 'V', 0, 60),
+	notes: z.string().max(2000, 'Notes have at most 2000 characters.')
+});
+export type RouteFields = z.infer<typeof routeFieldsSchema>;
+export type RouteFieldKey = keyof RouteFields;
+export const routePatchSchema = routeFieldsSchema.omit({ pointId: true }).partial().strict();
+export type RoutePatch = z.infer<typeof routePatchSchema>;
+
+export const routeVerticesSchema = z.array(vec2Schema).min(2, 'A cable route needs at least two points.').max(500);
+
+export const zoneFieldsSchema = z.object({
+	label: z.string().trim().max(60, 'At most 60 characters.'),
+	kind: z.enum(ZONE_KINDS, { error: 'Choose what rotates here.' })
+});
+export type ZoneFields = z.infer<typeof zoneFieldsSchema>;
+export const zonePatchSchema = zoneFieldsSchema.partial().strict();
+export type ZonePatch = z.infer<typeof zonePatchSchema>;
+export const zonePolygonSchema = z.array(vec2Schema).min(3, 'A keep-out zone needs at least three corners.').max(500);
+
+export const scaleSchema = z
+	.object({
+		a: vec2Schema,
+		b: vec2Schema,
+		lengthMm: z
+			.number({ error: 'Real length: enter a number in mm.' })
+			.refine((n) => Number.isFinite(n) && n > 0 && n <= 100_000, 'Real length must be above 0 and up to 100 000 mm.')
+	})
+	.refine((s) => Math.hypot(s.b[0] - s.a[0], s.b[1] - s.a[1]) >= 1, {
+		message: 'Draw the reference line with two distinct ends.',
+		path: ['b']
+	});
+export type ScaleData = z.infer<typeof scaleSchema>;
+
+/**
+ * Turns what was typed into a form control into a field value: empty means "not entered"
+ * (null) for the optional number and choice fields, text stays text.
+ */
+export function fieldInput(kind: 'number' | 'choice' | 'text', raw: string): unknown {
+	if (kind === 'text') return raw;
+	const s = raw.trim();
+	if (s === '') return null;
+	if (kind === 'choice') return s;
+	// Accept a decimal comma, as typed on many tablets.
+	const n = Number(s.replace(',', '.'));
+	return Number.isNaN(n) ? s : n;
+}
+
+/** Validates one field; the first message, or null when the value is fine. */
+export function checkField<S extends z.ZodObject>(schema: S, key: keyof z.infer<S> & string, value: unknown): string | null {
+	const field = schema.shape[key] as z.ZodType | undefined;
+	if (!field) return `Unknown field ${key}.`;
+	const r = field.safeParse(value);
+	return r.success ? null : (r.error.issues[0]?.message ?? 'Not a valid value.');
+}
