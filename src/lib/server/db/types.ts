@@ -192,6 +192,64 @@ export interface MediaTable {
 	updated_at: Generated<Timestamp>;
 }
 
+// Surveys and live boards (migration 20261201110000_surveys).
+export type SurveyStatus = 'planned' | 'walking' | 'in_review' | 'approved';
+export type SurveyAssigneeRole = 'engineer' | 'technician';
+type Bigint = ColumnType<string, string | number | bigint | undefined, string | number | bigint>;
+type Bytes = ColumnType<Buffer, Buffer | Uint8Array, Buffer | Uint8Array>;
+
+export interface SurveyTable {
+	id: Generated<string>;
+	organisation_id: string;
+	site_id: string;
+	title: string;
+	status: Generated<SurveyStatus>;
+	/** A calendar date; the repository reads it back as 'YYYY-MM-DD'. */
+	planned_date: ColumnType<Date | string | null, string | null | undefined, string | null>;
+	notes: Generated<string>;
+	created_by: string | null;
+	approved_at: Timestamp | null;
+	approved_by: string | null;
+	archived_at: Timestamp | null;
+	created_at: Generated<Timestamp>;
+	updated_at: Generated<Timestamp>;
+}
+
+export interface SurveyMachineTable {
+	organisation_id: string;
+	survey_id: string;
+	machine_id: string;
+	position: Generated<number>;
+}
+
+export interface SurveyAssigneeTable {
+	survey_id: string;
+	user_id: string;
+	role: SurveyAssigneeRole;
+	created_at: Generated<Timestamp>;
+}
+
+export interface BoardTable {
+	id: Generated<string>;
+	organisation_id: string;
+	survey_id: string;
+	machine_id: string;
+	media_id: string | null;
+	title: string;
+	frozen_at: Timestamp | null;
+	snapshot: ColumnType<Buffer | null, Buffer | Uint8Array | null | undefined, Buffer | Uint8Array | null>;
+	snapshot_seq: Generated<Bigint>;
+	created_at: Generated<Timestamp>;
+}
+
+export interface BoardUpdateTable {
+	seq: Generated<Bigint>;
+	board_id: string;
+	update: Bytes;
+	user_id: string | null;
+	created_at: Generated<Timestamp>;
+}
+
 // Each feature adds its tables here (one block per aggregate).
 export interface Database {
 	organisation: OrganisationTable;
@@ -208,6 +266,11 @@ export interface Database {
 	machine: MachineTable;
 	bearing: BearingTable;
 	media: MediaTable;
+	survey: SurveyTable;
+	survey_machine: SurveyMachineTable;
+	survey_assignee: SurveyAssigneeTable;
+	board: BoardTable;
+	board_update: BoardUpdateTable;
 }
 
 export type Organisation = Selectable<OrganisationTable>;
@@ -222,3 +285,5 @@ export type SupplyPoint = Selectable<SupplyPointTable>;
 export type Machine = Selectable<MachineTable>;
 export type Bearing = Selectable<BearingTable>;
 export type Media = Selectable<MediaTable>;
+export type Survey = Selectable<SurveyTable>;
+export type Board = Selectable<BoardTable>;
