@@ -1,6 +1,7 @@
 // npm test: the same set-up as npm start for a separate test cluster, then every test
 // (unit, integration against PostgreSQL, browser in Debian's Chromium). Non-zero exit on failure.
 import { spawnSync } from 'node:child_process';
+import { existsSync, readFileSync, rmSync } from 'node:fs';
 import { ensureChromium, ensureDependencies } from './deps.mjs';
 import { startCluster } from './pg.mjs';
 import { log, runStep } from './common.mjs';
@@ -17,11 +18,19 @@ let code = 1;
 try {
 	runStep('Building the app', 'npx', ['vite', 'build', '--logLevel', 'error']);
 	log('Running every test: unit, integration, browser');
-	const r = spawnSync('npx', ['vitest', 'run', ...process.argv.slice(2)], {
-		stdio: 'inherit',
-		env: { ...process.env, SPOTFACE_TEST_PG_URL: cluster.url, CHROMIUM_PATH: '/usr/bin/chromium' }
-	});
+	const report = '.data/test-report.json';
+	rmSync(report, { force: true });
+	const r = spawnSync(
+		'npx',
+		['vitest', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${report}`, ...process.argv.slice(2)],
+		{ stdio: 'inherit', env: { ...process.env, SPOTFACE_TEST_PG_URL: cluster.url, CHROMIUM_PATH: '/usr/bin/chromium' } }
+	);
 	code = r.status ?? 1;
+	if (existsSync(report)) {
+		const j = JSON.parse(readFileSync(report, 'utf8'));
+		if (!j.numTotalTests) code = code || 1; // a run that executed no test is a failure
+		console.log(`\n${j.numPassedTests} passed, ${j.numFailedTests} failed`);
+	}
 } finally {
 	cluster.stop();
 }
