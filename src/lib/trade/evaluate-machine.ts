@@ -27,9 +27,19 @@ export const DIRECTION_LABEL: Readonly<Record<Direction, string>> = {
 	axial: 'axial'
 };
 
+/** Words for the usual bearing positions; any other position is shown as given. */
+export const BEARING_POSITION_LABEL: Readonly<Record<string, string>> = {
+	drive_end: 'drive end (DE)',
+	non_drive_end: 'non-drive end (NDE)',
+	DE: 'drive end (DE)',
+	NDE: 'non-drive end (NDE)'
+};
+
 export interface BearingInput {
-	/** Position on the machine, e.g. 'DE' or 'NDE' (drive end, non-drive end). */
+	/** Position on the machine, e.g. 'drive_end' / 'non_drive_end' or 'DE' / 'NDE'; points refer to it. */
 	position: string;
+	/** Name shown in messages before the word "bearing", e.g. 'fan-side motor'; derived from the position when omitted. */
+	label?: string | null;
 	/** Monitored bearings need a radial point; true when omitted. */
 	monitored?: boolean | null;
 	/** Ask for an axial point too (thrust loads, axial faults matter). */
@@ -107,7 +117,7 @@ export function evaluateMachine(input: MachineEvaluationInput, thresholds?: Part
 
 	// Bearings and their defect frequencies.
 	const bearingsRaw = rawMachine.bearings ?? [];
-	const bearings: Array<{ position: string; monitored: boolean; axialWanted: boolean }> = [];
+	const bearings: Array<{ position: string; name: string; monitored: boolean; axialWanted: boolean }> = [];
 	let highestBpfi: number | undefined;
 	const missingGeometry: string[] = [];
 	if (!Array.isArray(bearingsRaw)) {
@@ -123,11 +133,15 @@ export function evaluateMachine(input: MachineEvaluationInput, thresholds?: Part
 			}
 			const monitored = r.flag(`${path}.monitored`, 'Bearing monitored', o.monitored, false);
 			const axialWanted = r.flag(`${path}.axialWanted`, 'Axial point wanted', o.axialWanted, false);
-			bearings.push({ position: o.position, monitored: monitored !== false, axialWanted: axialWanted === true });
+			const name =
+				typeof o.label === 'string' && o.label.trim() !== ''
+					? o.label
+					: (BEARING_POSITION_LABEL[o.position] ?? o.position);
+			bearings.push({ position: o.position, name, monitored: monitored !== false, axialWanted: axialWanted === true });
 			const geometryFields = ['balls', 'ballDiameter', 'pitchDiameter'] as const;
 			const given = geometryFields.filter((k) => o[k] !== undefined && o[k] !== null);
 			if (given.length === 0) {
-				missingGeometry.push(o.position);
+				missingGeometry.push(name);
 				return;
 			}
 			try {
@@ -146,7 +160,7 @@ export function evaluateMachine(input: MachineEvaluationInput, thresholds?: Part
 					highestBpfi = Math.max(highestBpfi ?? 0, f.bpfi);
 				}
 			} catch (e) {
-				r.invalid(path, `Bearing ${o.position} geometry: ${(e as Error).message}`);
+				r.invalid(path, `Bearing ${name} geometry: ${(e as Error).message}`);
 			}
 		});
 	}
@@ -167,7 +181,7 @@ export function evaluateMachine(input: MachineEvaluationInput, thresholds?: Part
 			finding(
 				'mounting.usable-frequency',
 				'warn',
-				`Enter the geometry (number of balls, ball and pitch diameter) of bearing ${missingGeometry.join(', ')} so the mounting can be checked against its defect frequencies.`
+				`Enter the geometry (number of balls, ball and pitch diameter) of the ${missingGeometry.join(', ')} bearing so the mounting can be checked against its defect frequencies.`
 			)
 		);
 	}
@@ -222,20 +236,20 @@ export function evaluateMachine(input: MachineEvaluationInput, thresholds?: Part
 					? finding(
 							'direction.radial',
 							'pass',
-							`Bearing ${b.position} has a ${radial.map((d) => DIRECTION_LABEL[d as Direction]).join(' and a ')} point.`
+							`The ${b.name} bearing has a ${radial.map((d) => DIRECTION_LABEL[d as Direction]).join(' and a ')} point.`
 						)
 					: finding(
 							'direction.radial',
 							'fail',
-							`Bearing ${b.position} has no radial point. Add a radial horizontal or radial vertical point on its housing (points without a direction do not count).`
+							`The ${b.name} bearing has no radial point. Add a radial horizontal or radial vertical point on its housing (points without a direction do not count).`
 						)
 			);
 		}
 		if (b.axialWanted) {
 			machineOut.push(
 				dirs.has('axial')
-					? finding('direction.axial', 'pass', `Bearing ${b.position} has an axial point.`)
-					: finding('direction.axial', 'warn', `Bearing ${b.position} is marked for thrust monitoring but has no axial point. Add one on its housing.`)
+					? finding('direction.axial', 'pass', `The ${b.name} bearing has an axial point.`)
+					: finding('direction.axial', 'warn', `The ${b.name} bearing is marked for thrust monitoring but has no axial point. Add one on its housing.`)
 			);
 		}
 	}

@@ -58,7 +58,7 @@ describe('evaluateMachine: coverage of bearing housings', () => {
 		const r = evaluateMachine(machine({}, [point('p1', 'DE', 'radial_h'), point('p2', 'NDE', 'axial')]));
 		const fails = byRule(r.machine, 'direction.radial').filter((f) => f.severity === 'fail');
 		expect(fails).toHaveLength(1);
-		expect(fails[0].message).toMatch(/Bearing NDE has no radial point/);
+		expect(fails[0].message).toMatch(/The non-drive end \(NDE\) bearing has no radial point/);
 		expect(r.worst).toBe('fail');
 	});
 
@@ -80,6 +80,23 @@ describe('evaluateMachine: coverage of bearing housings', () => {
 		expect(byRule(missing.machine, 'direction.axial').map((f) => f.severity)).toEqual(['warn']);
 		const present = evaluateMachine(machine({ bearings }, [point('p1', 'DE', 'radial_h'), point('p2', 'DE', 'axial')]));
 		expect(byRule(present.machine, 'direction.axial').map((f) => f.severity)).toEqual(['pass']);
+	});
+
+	test('positions as stored (drive_end / non_drive_end) and custom labels are named in words', () => {
+		const m = machine(
+			{
+				bearings: [
+					{ position: 'drive_end', ...cwru },
+					{ position: 'non_drive_end', label: 'fan-side motor', ...cwru }
+				]
+			},
+			[point('p1', 'drive_end', 'radial_h')]
+		);
+		const radial = byRule(evaluateMachine(m).machine, 'direction.radial');
+		expect(radial[0]).toMatchObject({ severity: 'pass' });
+		expect(radial[0].message).toMatch(/The drive end \(DE\) bearing has a radial horizontal point/);
+		expect(radial[1]).toMatchObject({ severity: 'fail' });
+		expect(radial[1].message).toMatch(/The fan-side motor bearing has no radial point/);
 	});
 
 	test('no bearings recorded warns', () => {
@@ -153,7 +170,7 @@ describe('mounting.usable-frequency', () => {
 		const r = evaluateMachine(machine({ bearings: [{ position: 'DE' }, { position: 'NDE', ...cwru }] }, [point('p', 'DE', 'radial_h')]));
 		const w = byRule(r.machine, 'mounting.usable-frequency');
 		expect(w).toMatchObject([{ severity: 'warn' }]);
-		expect(w[0].message).toMatch(/bearing DE/);
+		expect(w[0].message).toMatch(/drive end \(DE\) bearing/);
 		// The NDE geometry still gives a frequency of interest.
 		expect(r.frequencyOfInterestHz).toBeGreaterThan(0);
 	});
