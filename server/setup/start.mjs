@@ -1,4 +1,5 @@
 // npm start: set up everything on a fresh clone and serve the app.
+import { spawn } from 'node:child_process';
 import { log, prepare, runStep, spawnChild } from './common.mjs';
 
 const host = process.env.HOST ?? '127.0.0.1';
@@ -22,10 +23,21 @@ if (!process.env.SMTP_URL) {
 	env.MAIL_CAPTURE_DIR = '.data/mail';
 	children.push(spawnChild('node', ['--import', 'tsx', 'server/setup/mail-server.ts'], { ...env, SMTP_FAKE_PORT: String(smtpPort) }));
 }
-const app = spawnChild('node', ['--import', 'tsx', 'server/index.ts'], env);
+const app = spawn('node', ['--import', 'tsx', 'server/index.ts'], {
+	stdio: ['inherit', 'pipe', 'inherit'],
+	env: { ...process.env, ...env }
+});
 children.push(app);
+let announced = false;
+app.stdout.on('data', (chunk) => {
+	process.stdout.write(chunk);
+	if (!announced && String(chunk).includes('listening on')) {
+		announced = true;
+		banner();
+	}
+});
 
-setTimeout(() => {
+function banner() {
 	log(`Spotface is at ${env.ORIGIN}`);
 	log('Demo sign-ins (password for all: spotface-demo):');
 	log('  admin@harrowgate.example     admin');
@@ -34,7 +46,7 @@ setTimeout(() => {
 	log('  viewer@harrowgate.example    viewer');
 	if (env.MAIL_CAPTURE_DIR) log(`E-mail goes to a local test mail server; admins read it at ${env.ORIGIN}/settings/outbox`);
 	log('Press Ctrl-C to stop the app and the database.');
-}, 1500);
+}
 
 let stopping = false;
 function stop(code = 0) {
