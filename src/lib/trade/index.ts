@@ -33,3 +33,5 @@ export {
 export * from './evaluate-machine';
 export * from './evaluate-install';
 export * from './checklist';
+export * from './finding-units';
+export * from './calculators';
