@@ -86,6 +86,10 @@ export type SpeedMode = 'constant' | 'variable';
 export type Foundation = 'rigid' | 'flexible';
 export type BearingPosition = 'drive_end' | 'non_drive_end';
 export type MediaKind = 'photo' | 'drawing';
+/** Set by the database on insert (default now()); never null. */
+type Stamp = ColumnType<Date, Date | string | undefined, Date | string>;
+/** archived_at: null while the row is live. */
+type ArchivedAt = ColumnType<Date | null, Date | string | null | undefined, Date | string | null>;
 
 export interface SiteTable {
 	id: Generated<string>;
@@ -94,9 +98,9 @@ export interface SiteTable {
 	code: string | null;
 	address: Generated<string>;
 	notes: Generated<string>;
-	archived_at: Timestamp | null;
-	created_at: Generated<Timestamp>;
-	updated_at: Generated<Timestamp>;
+	archived_at: ArchivedAt;
+	created_at: Stamp;
+	updated_at: Stamp;
 }
 
 export interface AreaTable {
@@ -105,9 +109,9 @@ export interface AreaTable {
 	site_id: string;
 	name: string;
 	notes: Generated<string>;
-	archived_at: Timestamp | null;
-	created_at: Generated<Timestamp>;
-	updated_at: Generated<Timestamp>;
+	archived_at: ArchivedAt;
+	created_at: Stamp;
+	updated_at: Stamp;
 }
 
 export interface SupplyPointTable {
@@ -119,9 +123,9 @@ export interface SupplyPointTable {
 	voltage_v: Generated<number>;
 	max_current_a: number | null;
 	location_note: Generated<string>;
-	archived_at: Timestamp | null;
-	created_at: Generated<Timestamp>;
-	updated_at: Generated<Timestamp>;
+	archived_at: ArchivedAt;
+	created_at: Stamp;
+	updated_at: Stamp;
 }
 
 export interface MachineTable {
@@ -140,9 +144,9 @@ export interface MachineTable {
 	hazardous_area: Generated<boolean>;
 	hazardous_zone_note: Generated<string>;
 	notes: Generated<string>;
-	archived_at: Timestamp | null;
-	created_at: Generated<Timestamp>;
-	updated_at: Generated<Timestamp>;
+	archived_at: ArchivedAt;
+	created_at: Stamp;
+	updated_at: Stamp;
 }
 
 export interface BearingTable {
@@ -157,9 +161,9 @@ export interface BearingTable {
 	pitch_d_mm: number | null;
 	contact_angle_deg: Generated<number>;
 	notes: Generated<string>;
-	archived_at: Timestamp | null;
-	created_at: Generated<Timestamp>;
-	updated_at: Generated<Timestamp>;
+	archived_at: ArchivedAt;
+	created_at: Stamp;
+	updated_at: Stamp;
 }
 
 export interface MediaTable {
@@ -187,9 +191,9 @@ export interface MediaTable {
 	sha256: string;
 	etag: string;
 	uploaded_by: string | null;
-	archived_at: Timestamp | null;
-	created_at: Generated<Timestamp>;
-	updated_at: Generated<Timestamp>;
+	archived_at: ArchivedAt;
+	created_at: Stamp;
+	updated_at: Stamp;
 }
 
 // Surveys and live boards (migration 20261201110000_surveys).
@@ -210,9 +214,9 @@ export interface SurveyTable {
 	created_by: string | null;
 	approved_at: Timestamp | null;
 	approved_by: string | null;
-	archived_at: Timestamp | null;
-	created_at: Generated<Timestamp>;
-	updated_at: Generated<Timestamp>;
+	archived_at: ArchivedAt;
+	created_at: Stamp;
+	updated_at: Stamp;
 }
 
 export interface SurveyMachineTable {
@@ -226,7 +230,7 @@ export interface SurveyAssigneeTable {
 	survey_id: string;
 	user_id: string;
 	role: SurveyAssigneeRole;
-	created_at: Generated<Timestamp>;
+	created_at: Stamp;
 }
 
 export interface BoardTable {
@@ -239,7 +243,7 @@ export interface BoardTable {
 	frozen_at: Timestamp | null;
 	snapshot: ColumnType<Buffer | null, Buffer | Uint8Array | null | undefined, Buffer | Uint8Array | null>;
 	snapshot_seq: Generated<Bigint>;
-	created_at: Generated<Timestamp>;
+	created_at: Stamp;
 }
 
 export interface BoardUpdateTable {
@@ -247,7 +251,7 @@ export interface BoardUpdateTable {
 	board_id: string;
 	update: Bytes;
 	user_id: string | null;
-	created_at: Generated<Timestamp>;
+	created_at: Stamp;
 }
 
 // Each feature adds its tables here (one block per aggregate).

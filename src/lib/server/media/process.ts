@@ -2,7 +2,7 @@
 // from the bytes (never trusted from the name or the header), size and pixel count are
 // limited before anything is decoded, the picture is turned upright from its EXIF
 // orientation, and the served images carry no metadata (no GPS position, no camera serial).
-import sharp from 'sharp';
+import sharp, { type Metadata, type SharpOptions } from 'sharp';
 import { createHash } from 'node:crypto';
 
 export interface MediaLimits {
@@ -103,13 +103,13 @@ export async function processMedia(bytes: Buffer, limits: MediaLimits = DEFAULT_
 	if (!type) throw new MediaError(415, `This file is ${describe(bytes)}. ${ACCEPTED}`);
 
 	let source: Buffer;
-	let sourceOptions: sharp.SharpOptions;
+	let sourceOptions: SharpOptions;
 	if (type === 'application/pdf') {
 		const page = await renderFirstPage(bytes, limits);
 		source = page.data;
 		sourceOptions = { raw: { width: page.width, height: page.height, channels: page.channels } };
 	} else {
-		let meta: sharp.Metadata;
+		let meta: Metadata;
 		try {
 			// Reads the header only; a bomb is refused before a single pixel is decoded.
 			meta = await sharp(bytes, { failOn: 'none', limitInputPixels: false }).metadata();
