@@ -11,6 +11,10 @@ if (!databaseUrl) {
 }
 process.env.ORIGIN ??= `http://${host === '0.0.0.0' ? '127.0.0.1' : host}:${port}`;
 
+// Photo and drawing uploads go up to MEDIA_MAX_BYTES (25 MB by default): the adapter's body
+// limit (512 kB unless set) must let them through; the upload route checks the real limit.
+process.env.BODY_SIZE_LIMIT ??= String(Number(process.env.MEDIA_MAX_BYTES || 25 * 1024 * 1024) + 1024 * 1024);
+
 // @ts-expect-error: the build output has no type declarations
 const { handler } = await import('../build/handler.js');
 
