@@ -5,7 +5,6 @@ import { spawnSync } from 'node:child_process';
 import pg from 'pg';
 import { createDb } from '../../src/lib/server/db/index';
 import { migrateToLatest } from '../../src/lib/server/db/migrate';
-// @ts-expect-error: plain ESM helper without types
 import { startCluster } from '../../server/setup/pg.mjs';
 
 export const TEMPLATE_DB = 'spotface_template';

@@ -1,6 +1,6 @@
 import { fail } from '@sveltejs/kit';
 import { forgotSchema } from '$lib/schemas/auth';
-import { parseForm } from '$lib/schemas/form';
+import { parseForm, type FieldErrors } from '$lib/schemas/form';
 import { requestPasswordReset } from '$lib/server/auth/accounts';
 import { context } from '$lib/server/context';
 import type { Actions } from './$types';
@@ -13,7 +13,7 @@ export const actions: Actions = {
 		const a = limits.resetPerAddress.hit(getClientAddress());
 		const b = limits.resetPerAccount.hit(form.data.email.toLowerCase());
 		if (!a.ok || !b.ok) {
-			return fail(429, { values: form.values, errors: { _: 'Too many reset requests. Wait a while and try again.' } });
+			return fail(429, { values: form.values, errors: { _: 'Too many reset requests. Wait a while and try again.' } as FieldErrors });
 		}
 		await requestPasswordReset(handle.db, mailer, config.origin, form.data.email);
 		return { sent: true, values: form.values };

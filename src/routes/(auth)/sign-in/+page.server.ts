@@ -1,6 +1,6 @@
 import { fail, redirect } from '@sveltejs/kit';
 import { signInSchema } from '$lib/schemas/auth';
-import { parseForm } from '$lib/schemas/form';
+import { parseForm, type FieldErrors } from '$lib/schemas/form';
 import { checkCredentials } from '$lib/server/auth/accounts';
 import { startSession } from '$lib/server/auth/session';
 import { context } from '$lib/server/context';
@@ -26,12 +26,12 @@ export const actions: Actions = {
 			const wait = Math.max(byAddress.retryAfterSec, byAccount.retryAfterSec);
 			return fail(429, {
 				values: form.values,
-				errors: { _: `Too many sign-in attempts. Wait ${Math.ceil(wait / 60)} minute(s) and try again.` }
+				errors: { _: `Too many sign-in attempts. Wait ${Math.ceil(wait / 60)} minute(s) and try again.` } as FieldErrors
 			});
 		}
 		const who = await checkCredentials(handle.db, form.data.email, form.data.password);
 		if (!who) {
-			return fail(400, { values: form.values, errors: { password: 'Wrong e-mail or password.' } });
+			return fail(400, { values: form.values, errors: { password: 'Wrong e-mail or password.' } as FieldErrors });
 		}
 		limits.signInPerAccount.reset(form.data.email.toLowerCase());
 		await startSession(cookies, who.userId, who.organisationId);

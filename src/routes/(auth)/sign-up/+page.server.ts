@@ -1,6 +1,6 @@
 import { fail, redirect } from '@sveltejs/kit';
 import { signUpSchema } from '$lib/schemas/auth';
-import { parseForm } from '$lib/schemas/form';
+import { parseForm, type FieldErrors } from '$lib/schemas/form';
 import { AccountError, signUp } from '$lib/server/auth/accounts';
 import { startSession } from '$lib/server/auth/session';
 import { context } from '$lib/server/context';
@@ -19,7 +19,7 @@ export const actions: Actions = {
 			await startSession(cookies, userId, organisationId);
 		} catch (e) {
 			if (e instanceof AccountError) {
-				return fail(e.status, { values: form.values, errors: { [e.field ?? '_']: e.message } });
+				return fail(e.status, { values: form.values, errors: { [e.field ?? '_']: e.message } as FieldErrors });
 			}
 			throw e;
 		}

@@ -1,6 +1,6 @@
 import { error, fail } from '@sveltejs/kit';
 import { invitationCreateSchema, memberRoleSchema } from '$lib/schemas/auth';
-import { parseForm } from '$lib/schemas/form';
+import { parseForm, type FieldErrors } from '$lib/schemas/form';
 import { requirePage } from '$lib/server/auth/require';
 import { can } from '$lib/server/auth/guard';
 import { context } from '$lib/server/context';
@@ -41,7 +41,7 @@ export const actions: Actions = {
 				role: form.data.role
 			});
 		} catch (e) {
-			if (e instanceof AccountError) return fail(e.status, { action: 'invite', values: form.values, errors: { [e.field ?? '_']: e.message } });
+			if (e instanceof AccountError) return fail(e.status, { action: 'invite', values: form.values, errors: { [e.field ?? '_']: e.message } as FieldErrors });
 			throw e;
 		}
 		return { action: 'invite', invited: form.data.email };
@@ -65,7 +65,7 @@ export const actions: Actions = {
 			const changed = await members.changeRole(db, viewer.organisationId, id, form.data.role);
 			if (!changed) error(404, 'No such member');
 		} catch (e) {
-			if (e instanceof members.LastAdminError) return fail(409, { action: 'role', id, errors: { role: e.message } });
+			if (e instanceof members.LastAdminError) return fail(409, { action: 'role', id, errors: { role: e.message } as FieldErrors });
 			throw e;
 		}
 		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'member.role-changed', subjectType: 'member', subjectId: id, data: { role: form.data.role } });
@@ -79,7 +79,7 @@ export const actions: Actions = {
 			const removed = await members.remove(db, viewer.organisationId, id);
 			if (!removed) error(404, 'No such member');
 		} catch (e) {
-			if (e instanceof members.LastAdminError) return fail(409, { action: 'remove', id, errors: { _: e.message } });
+			if (e instanceof members.LastAdminError) return fail(409, { action: 'remove', id, errors: { _: e.message } as FieldErrors });
 			throw e;
 		}
 		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'member.removed', subjectType: 'member', subjectId: id });

@@ -1,6 +1,6 @@
 import { fail, redirect } from '@sveltejs/kit';
 import { acceptInviteSchema } from '$lib/schemas/auth';
-import { parseForm } from '$lib/schemas/form';
+import { parseForm, type FieldErrors } from '$lib/schemas/form';
 import { AccountError, acceptInvitation, findOpenInvitation } from '$lib/server/auth/accounts';
 import { endSession, startSession } from '$lib/server/auth/session';
 import { context } from '$lib/server/context';
@@ -28,7 +28,7 @@ export const actions: Actions = {
 		try {
 			who = await acceptInvitation(context().handle.db, params.token, form.data);
 		} catch (e) {
-			if (e instanceof AccountError) return fail(e.status, { values: form.values, errors: { [e.field ?? '_']: e.message } });
+			if (e instanceof AccountError) return fail(e.status, { values: form.values, errors: { [e.field ?? '_']: e.message } as FieldErrors });
 			throw e;
 		}
 		if (locals.viewer) await endSession(cookies, locals.viewer.sessionId);

@@ -1,6 +1,6 @@
 import { fail, redirect } from '@sveltejs/kit';
 import { resetSchema } from '$lib/schemas/auth';
-import { parseForm } from '$lib/schemas/form';
+import { parseForm, type FieldErrors } from '$lib/schemas/form';
 import { AccountError, findUsableReset, resetPassword } from '$lib/server/auth/accounts';
 import { context } from '$lib/server/context';
 import type { Actions, PageServerLoad } from './$types';
@@ -17,7 +17,7 @@ export const actions: Actions = {
 		try {
 			await resetPassword(context().handle.db, params.token, form.data.password);
 		} catch (e) {
-			if (e instanceof AccountError) return fail(410, { values: {}, errors: { _: e.message } });
+			if (e instanceof AccountError) return fail(410, { values: {}, errors: { _: e.message } as FieldErrors });
 			throw e;
 		}
 		redirect(303, '/sign-in?reset=1');
