@@ -90,6 +90,10 @@ const CHOICE_PROMPTS: Record<string, { rule?: string; message: string }> = {
 	'point.mounting': {
 		message: 'Choose the mounting (tapped stud, bonded pad or magnet) so the hole and seat can be checked.'
 	},
+	'machine.speedRpm': {
+		rule: 'machine.speed',
+		message: "The machine's speed is not in the register yet: add it (r/min) so the speed rules can be checked."
+	},
 	'route.lengthM': {
 		rule: 'route.drawn',
 		message: 'Enter the cable length, or set the scale so the drawn route can be measured.'

@@ -180,3 +180,12 @@ test('bad threshold overrides are findings, not a crash', () => {
 test('labels sort naturally', () => {
 	expect(['P10', 'P2', 'p1', 'A'].sort(compareLabels)).toEqual(['A', 'p1', 'P2', 'P10']);
 });
+
+test('a machine without a speed in the register asks for it as a check', () => {
+	const doc = new Y.Doc();
+	const id = addPoint(doc, { x: 0, y: 0, ...goodPoint });
+	const e = evaluateBoard(readBoard(doc), { machine: { ...machine, speedRpm: null as never } }).points.get(id)!;
+	const f = e.findings.find((x) => x.rule === 'machine.speed')!;
+	expect(f).toMatchObject({ severity: 'warn' });
+	expect(f.message).toMatch(/not in the register/);
+});

@@ -29,6 +29,15 @@ export class RouteTool extends BaseTool {
 		this.#hover = [p.x, p.y];
 	}
 
+	/** Starts a route at a point chosen elsewhere (the point's "Draw its cable route" button). */
+	startAt(pointId: string): boolean {
+		const point = this.host.board().points.find((q) => q.id === pointId);
+		if (!point || !this.guardEdit()) return false;
+		this.#pointId = point.id;
+		this.#vertices = [[point.x, point.y]];
+		return true;
+	}
+
 	protected onTap(p: ToolPointer): void {
 		if (!this.guardEdit()) return;
 		const at: Vec2 = [p.x, p.y];

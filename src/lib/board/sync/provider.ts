@@ -1,0 +1,476 @@
+// The one sync client of the live board. It runs in the browser and in Node (socket.io-client),
+// and the board page, the tests, the benchmarks and integrations all use it.
+//
+//   const provider = new BoardProvider({ serverUrl, boardId, doc, cookie?, offline?, user? });
+//   provider.awareness.setLocalStateField('cursor', { x, y });
+//   provider.on('status', (s) => ...);   // 'connecting' | 'connected' | 'disconnected' | 'refused'
+//   await provider.whenSynced();
+//
+// Connection: one socket.io connection per board. On connect it joins the board (the server
+// checks the session and the organisation), then both sides exchange y-protocols sync step 1
+// and 2 and the provider sends every local change as an update. In Node pass the session as
+// `cookie` ('spotface_session=...'); the browser sends its own cookie.
+//
+// Acknowledgement: the server answers each update once it is stored. `unsynced` counts local
+// changes (including those made offline) not yet acknowledged; it falls to 0 once the server
+// has stored them all. After a page reload the count restarts at 0 even if the offline copy
+// holds changes the server has not seen yet; they are sent with the first sync all the same.
+//
+// Refusal and rollback: when the server refuses an update (viewer role, approved board, ended
+// session) the provider does not try to undo the change in place: a Yjs document cannot forget
+// what it has integrated, and an undo would be a new change the server refuses again. Instead it
+// loads the server's state into a fresh Y.Doc, swaps it in (and in the offline store), then
+// emits 'doc' (newDoc) and 'refused' (reason, { kind: 'update', doc: newDoc }). The UI must
+// re-bind to `provider.doc` on 'doc' and tell the user the reason. The document passed to the
+// constructor is left as it was (not destroyed), so nothing bound to it breaks meanwhile.
+// A refused join or handshake emits 'refused' (reason, { kind: 'join' | 'session' }) and sets
+// status 'refused'; the provider then stays disconnected.
+//
+// Offline: in the browser (offline !== false and indexedDB present) the document is kept in
+// IndexedDB through y-indexeddb, so the board opens and takes edits without a connection; on
+// reconnect the sync exchange merges both sides. IndexedDB is never used in Node unless asked.
+import * as Y from 'yjs';
+import * as decoding from 'lib0/decoding';
+import * as encoding from 'lib0/encoding';
+import { Awareness, applyAwarenessUpdate, encodeAwarenessUpdate, removeAwarenessStates } from 'y-protocols/awareness';
+import * as syncProtocol from 'y-protocols/sync';
+import { io, type Socket } from 'socket.io-client';
+import {
+	EVENT_CLOSED,
+	EVENT_JOIN,
+	EVENT_MESSAGE,
+	EVENT_STATE,
+	MESSAGE_AWARENESS,
+	MESSAGE_SYNC,
+	type BoardStateEvent,
+	type JoinReply,
+	type MessageAck
+} from './protocol';
+
+export type ProviderStatus = 'connecting' | 'connected' | 'disconnected' | 'refused';
+export type ProviderEvent = 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc';
+
+export interface RefusalDetail {
+	/** 'update': a change was refused and rolled back; 'join': the board cannot be opened; 'session': sign in again. */
+	kind: 'update' | 'join' | 'session';
+	doc?: Y.Doc;
+}
+
+export interface BoardProviderOptions {
+	serverUrl: string;
+	boardId: string;
+	doc: Y.Doc;
+	/** Node only: the Cookie header carrying the session, e.g. 'spotface_session=...'. */
+	cookie?: string;
+	/** Keep an offline copy in IndexedDB (browser only). Default: true where indexedDB exists. */
+	offline?: boolean;
+	/** Presence identity (the server replaces the name with the signed-in member's). */
+	user?: { name: string; color: string };
+	/** Connect at once (default true). */
+	connect?: boolean;
+	/** socket.io path (default '/socket.io'). */
+	path?: string;
+	/** Longest pause between presence messages while the pointer moves (default 50 ms). */
+	awarenessThrottleMs?: number;
+}
+
+type Listener = (...a: any[]) => void;
+
+const isBrowser = typeof window !== 'undefined' && typeof document !== 'undefined';
+const OFFLINE_PREFIX = 'spotface-board-';
+
+interface OfflineStore {
+	whenSynced: Promise<unknown>;
+	destroy(): Promise<void>;
+	clearData(): Promise<void>;
+}
+
+export class BoardProvider {
+	readonly awareness: Awareness;
+	readonly boardId: string;
+	status: ProviderStatus = 'disconnected';
+	synced = false;
+	unsynced = 0;
+	readOnly = false;
+	/** Why the board is read-only, as the server put it (null when writable). */
+	readOnlyReason: string | null = null;
+
+	#doc: Y.Doc;
+	#socket: Socket | null = null;
+	#listeners = new Map<string, Set<Listener>>();
+	#opts: BoardProviderOptions;
+	#joined = false;
+	#wantConnected = false;
+	#destroyed = false;
+	/** Local changes made so far, and how many of them the server has acknowledged. */
+	#localSeq = 0;
+	#ackedSeq = 0;
+	/** Bumped on every document swap; acks for an older document are ignored. */
+	#generation = 0;
+	#pendingRefusal: string | null = null;
+	#syncWaiters: Array<() => void> = [];
+	#offline: OfflineStore | null = null;
+	#offlineReady: Promise<void> = Promise.resolve();
+	#awarenessTimer: ReturnType<typeof setTimeout> | null = null;
+	#awarenessLastSent = 0;
+	#reconnectTimer: ReturnType<typeof setTimeout> | null = null;
+
+	constructor(opts: BoardProviderOptions) {
+		this.#opts = opts;
+		this.boardId = opts.boardId;
+		this.#doc = opts.doc;
+		this.awareness = new Awareness(opts.doc);
+		if (opts.user) this.awareness.setLocalStateField('user', opts.user);
+		this.#doc.on('update', this.#onDocUpdate);
+		this.awareness.on('update', this.#onAwarenessUpdate);
+		const wantOffline = opts.offline ?? (isBrowser && typeof indexedDB !== 'undefined');
+		if (wantOffline && typeof indexedDB !== 'undefined') this.#offlineReady = this.#openOffline(this.#doc);
+		if (opts.connect !== false) this.connect();
+	}
+
+	/** The document being synced. It changes only after a refused update (see 'doc'). */
+	get doc(): Y.Doc {
+		return this.#doc;
+	}
+
+	on(event: ProviderEvent, cb: Listener): () => void {
+		let set = this.#listeners.get(event);
+		if (!set) this.#listeners.set(event, (set = new Set()));
+		set.add(cb);
+		return () => set!.delete(cb);
+	}
+
+	#emit(event: ProviderEvent, ...args: unknown[]) {
+		for (const cb of [...(this.#listeners.get(event) ?? [])]) {
+			try {
+				cb(...args);
+			} catch (e) {
+				console.error(`[board sync] '${event}' listener failed:`, e);
+			}
+		}
+	}
+
+	/** Resolves when the current connection has finished its sync with the server. */
+	whenSynced(): Promise<void> {
+		if (this.synced) return Promise.resolve();
+		return new Promise((r) => this.#syncWaiters.push(r));
+	}
+
+	/** Resolves when the offline copy (if any) has been loaded into the document. */
+	whenLocalLoaded(): Promise<void> {
+		return this.#offlineReady;
+	}
+
+	connect() {
+		if (this.#destroyed) return;
+		this.#wantConnected = true;
+		if (this.status === 'refused') return;
+		if (!this.#socket) this.#socket = this.#createSocket();
+		if (!this.#socket.connected) {
+			this.#setStatus('connecting');
+			this.#socket.connect();
+		}
+	}
+
+	disconnect() {
+		this.#wantConnected = false;
+		if (this.#reconnectTimer) clearTimeout(this.#reconnectTimer);
+		this.#reconnectTimer = null;
+		if (this.#socket?.connected && this.awareness.getLocalState() !== null) {
+			// Let the others see us go at once rather than after the server notices.
+			this.#send(encodeFrame(MESSAGE_AWARENESS, encodeAwarenessUpdate(this.awareness, [this.awareness.clientID], new Map())));
+		}
+		this.#socket?.disconnect();
+		this.#onDisconnected();
+		if (this.status !== 'refused') this.#setStatus('disconnected');
+	}
+
+	async destroy(): Promise<void> {
+		if (this.#destroyed) return;
+		this.disconnect();
+		this.#destroyed = true;
+		this.#socket?.removeAllListeners();
+		this.#socket = null;
+		if (this.#awarenessTimer) clearTimeout(this.#awarenessTimer);
+		this.#doc.off('update', this.#onDocUpdate);
+		this.awareness.off('update', this.#onAwarenessUpdate);
+		this.awareness.destroy();
+		await this.#offlineReady.catch(() => {});
+		await this.#offline?.destroy();
+		this.#offline = null;
+		this.#listeners.clear();
+	}
+
+	/** Deletes every board's offline copy in this browser (e.g. on sign-out on a shared tablet). */
+	static async clearOfflineCopies(): Promise<void> {
+		if (typeof indexedDB === 'undefined' || typeof indexedDB.databases !== 'function') return;
+		const dbs = await indexedDB.databases();
+		await Promise.all(
+			dbs
+				.filter((d) => d.name?.startsWith(OFFLINE_PREFIX))
+				.map(
+					(d) =>
+						new Promise<void>((resolve) => {
+							const r = indexedDB.deleteDatabase(d.name!);
+							r.onsuccess = r.onerror = r.onblocked = () => resolve();
+						})
+				)
+		);
+	}
+
+	// ---- internals ------------------------------------------------------------------------
+
+	#createSocket(): Socket {
+		const socket = io(this.#opts.serverUrl, {
+			path: this.#opts.path ?? '/socket.io',
+			autoConnect: false,
+			forceNew: true,
+			reconnection: true,
+			reconnectionDelay: 500,
+			reconnectionDelayMax: 5000,
+			// WebSocket first; the browser falls back to long-polling where a proxy blocks it.
+			transports: isBrowser ? ['websocket', 'polling'] : ['websocket'],
+			tryAllTransports: isBrowser,
+			withCredentials: true,
+			extraHeaders: this.#opts.cookie ? { cookie: this.#opts.cookie } : undefined
+		});
+		socket.on('connect', () => void this.#join(socket));
+		socket.on('connect_error', (err: Error & { data?: unknown }) => {
+			// A refusal by the handshake middleware (no or ended session) is final; network
+			// errors are retried by socket.io.
+			if (!socket.active) this.#refuse(err.message || 'unauthorised', 'session');
+			else this.#setStatus('connecting');
+		});
+		socket.on('disconnect', (reason) => {
+			this.#onDisconnected();
+			if (this.status === 'refused') return;
+			this.#setStatus(this.#wantConnected ? 'connecting' : 'disconnected');
+			// The server closed us (a limit, or it is shutting down): try again a little later.
+			if (reason === 'io server disconnect' && this.#wantConnected && !this.#destroyed) {
+				this.#reconnectTimer = setTimeout(() => {
+					this.#reconnectTimer = null;
+					if (this.#wantConnected && this.status !== 'refused') socket.connect();
+				}, 2000);
+			}
+		});
+		socket.on(EVENT_MESSAGE, (data: ArrayBuffer | Uint8Array) => this.#onMessage(data));
+		socket.on(EVENT_STATE, (ev: BoardStateEvent) => this.#setReadOnly(ev.readOnly, ev.reason));
+		socket.on(EVENT_CLOSED, (ev: { reason?: string }) => {
+			console.warn(`[board sync] the server closed the connection: ${ev?.reason ?? 'no reason given'}`);
+		});
+		return socket;
+	}
+
+	async #join(socket: Socket) {
+		let reply: JoinReply;
+		try {
+			reply = (await socket.timeout(15_000).emitWithAck(EVENT_JOIN, { boardId: this.boardId })) as JoinReply;
+		} catch {
+			// No answer: drop the connection and let socket.io reconnect.
+			if (socket.connected) {
+				socket.disconnect();
+				if (this.#wantConnected) socket.connect();
+			}
+			return;
+		}
+		if (socket !== this.#socket) return;
+		if (!reply.ok) {
+			this.#refuse(reply.error, 'join');
+			socket.disconnect();
+			return;
+		}
+		this.#joined = true;
+		this.#setReadOnly(reply.readOnly, reply.reason);
+		this.#setStatus('connected');
+		// Our state vector; the server answers with what we miss (sync step 2) and asks for ours.
+		const e = encoding.createEncoder();
+		encoding.writeVarUint(e, MESSAGE_SYNC);
+		syncProtocol.writeSyncStep1(e, this.#doc);
+		this.#send(encoding.toUint8Array(e));
+		// Re-announce presence with a new clock: the server may still hold our last clock from
+		// before the reconnect and would ignore the same one.
+		const state = this.awareness.getLocalState();
+		if (state !== null) this.awareness.setLocalState(state);
+	}
+
+	#onDisconnected() {
+		this.#joined = false;
+		if (this.synced) {
+			this.synced = false;
+			this.#emit('synced', false);
+		}
+		// Nobody else is known to be here while we are not connected.
+		const others = [...this.awareness.getStates().keys()].filter((id) => id !== this.awareness.clientID);
+		if (others.length) removeAwarenessStates(this.awareness, others, this);
+	}
+
+	#refuse(reason: string, kind: RefusalDetail['kind']) {
+		this.#wantConnected = false;
+		this.#setStatus('refused');
+		this.#emit('refused', reason, { kind } satisfies RefusalDetail);
+	}
+
+	#setStatus(s: ProviderStatus) {
+		if (this.status === s) return;
+		this.status = s;
+		this.#emit('status', s);
+	}
+
+	#setReadOnly(readOnly: boolean, reason: string | null) {
+		this.readOnlyReason = reason;
+		if (this.readOnly === readOnly) return;
+		this.readOnly = readOnly;
+		this.#emit('readonly', readOnly, reason);
+	}
+
+	#setUnsynced() {
+		const n = Math.max(0, this.#localSeq - this.#ackedSeq);
+		if (n === this.unsynced) return;
+		this.unsynced = n;
+		this.#emit('unsynced', n);
+	}
+
+	#send(message: Uint8Array, onAck?: (ack: MessageAck) => void) {
+		const socket = this.#socket;
+		if (!socket?.connected) return;
+		if (onAck) socket.emit(EVENT_MESSAGE, message, onAck);
+		else socket.emit(EVENT_MESSAGE, message);
+	}
+
+	/** Sends an update; when the server has stored it, local changes up to `upTo` are synced. */
+	#sendUpdate(message: Uint8Array, upTo: number) {
+		const generation = this.#generation;
+		this.#send(message, (ack) => {
+			if (generation !== this.#generation || this.#destroyed) return;
+			if (ack?.ok) {
+				this.#ackedSeq = Math.max(this.#ackedSeq, upTo);
+				this.#setUnsynced();
+			} else if (ack && 'refused' in ack) {
+				this.#rollBack(ack.refused, ack.readOnly);
+			}
+		});
+	}
+
+	#onDocUpdate = (update: Uint8Array, origin: unknown) => {
+		if (origin === this) return; // from the server
+		// What the offline copy loads may or may not be on the server already: it is sent (the
+		// server drops what it has) but not counted as an unsynced change.
+		if (origin === null || origin !== this.#offline) {
+			this.#localSeq++;
+			this.#setUnsynced();
+		}
+		if (!this.#joined) return; // sent with the next sync step 2
+		const e = encoding.createEncoder();
+		encoding.writeVarUint(e, MESSAGE_SYNC);
+		syncProtocol.writeUpdate(e, update);
+		this.#sendUpdate(encoding.toUint8Array(e), this.#localSeq);
+	};
+
+	#onAwarenessUpdate = ({ added, updated, removed }: { added: number[]; updated: number[]; removed: number[] }, origin: unknown) => {
+		if (origin === this) return;
+		const mine = this.awareness.clientID;
+		if (!added.includes(mine) && !updated.includes(mine) && !removed.includes(mine)) return;
+		this.#scheduleAwareness();
+	};
+
+	/** Presence goes out at most every `awarenessThrottleMs`, always with the latest state. */
+	#scheduleAwareness() {
+		if (!this.#joined || this.#awarenessTimer) return;
+		const gap = this.#opts.awarenessThrottleMs ?? 50;
+		const wait = Math.max(0, this.#awarenessLastSent + gap - Date.now());
+		const flush = () => {
+			this.#awarenessTimer = null;
+			this.#awarenessLastSent = Date.now();
+			if (!this.#joined) return;
+			this.#send(encodeFrame(MESSAGE_AWARENESS, encodeAwarenessUpdate(this.awareness, [this.awareness.clientID])));
+		};
+		if (wait === 0) flush();
+		else this.#awarenessTimer = setTimeout(flush, wait);
+	}
+
+	#onMessage(data: ArrayBuffer | Uint8Array) {
+		const bytes = data instanceof Uint8Array ? data : new Uint8Array(data);
+		try {
+			const d = decoding.createDecoder(bytes);
+			const type = decoding.readVarUint(d);
+			if (type === MESSAGE_SYNC) {
+				const reply = encoding.createEncoder();
+				encoding.writeVarUint(reply, MESSAGE_SYNC);
+				const upTo = this.#localSeq;
+				const step = syncProtocol.readSyncMessage(d, reply, this.#doc, this);
+				if (step === syncProtocol.messageYjsSyncStep1) {
+					// Our sync step 2 (everything the server lacks, offline edits included).
+					this.#sendUpdate(encoding.toUint8Array(reply), upTo);
+				} else if (step === syncProtocol.messageYjsSyncStep2) {
+					this.#onSynced();
+				}
+			} else if (type === MESSAGE_AWARENESS) {
+				applyAwarenessUpdate(this.awareness, decoding.readVarUint8Array(d), this);
+			}
+		} catch (e) {
+			console.error('[board sync] could not read a message from the server:', e);
+		}
+	}
+
+	#onSynced() {
+		if (this.#pendingRefusal !== null) {
+			const reason = this.#pendingRefusal;
+			this.#pendingRefusal = null;
+			this.#emit('doc', this.#doc);
+			this.#emit('refused', reason, { kind: 'update', doc: this.#doc } satisfies RefusalDetail);
+		}
+		if (!this.synced) {
+			this.synced = true;
+			this.#emit('synced', true);
+		}
+		for (const r of this.#syncWaiters.splice(0)) r();
+	}
+
+	/** The server refused a change: continue on a fresh copy of the server's state. */
+	#rollBack(reason: string, readOnly: boolean) {
+		this.#setReadOnly(readOnly || this.readOnly, readOnly ? reason : this.readOnlyReason);
+		this.#generation++;
+		const old = this.#doc;
+		old.off('update', this.#onDocUpdate);
+		const fresh = new Y.Doc();
+		fresh.on('update', this.#onDocUpdate);
+		this.#doc = fresh;
+		this.#localSeq = 0;
+		this.#ackedSeq = 0;
+		this.#setUnsynced();
+		this.#pendingRefusal = reason;
+		if (this.synced) {
+			this.synced = false;
+			this.#emit('synced', false);
+		}
+		// The offline copy holds the refused change too: start it again from the fresh document.
+		if (this.#offline) {
+			const store = this.#offline;
+			this.#offline = null;
+			this.#offlineReady = store
+				.clearData()
+				.catch(() => {})
+				.then(() => this.#openOffline(fresh));
+		}
+		// Ask for the whole state (empty state vector); 'refused' follows once it is here.
+		const e = encoding.createEncoder();
+		encoding.writeVarUint(e, MESSAGE_SYNC);
+		syncProtocol.writeSyncStep1(e, fresh);
+		this.#send(encoding.toUint8Array(e));
+	}
+
+	async #openOffline(doc: Y.Doc): Promise<void> {
+		const { IndexeddbPersistence } = await import('y-indexeddb');
+		if (this.#destroyed || doc !== this.#doc) return;
+		const store = new IndexeddbPersistence(OFFLINE_PREFIX + this.boardId, doc);
+		this.#offline = store as unknown as OfflineStore;
+		await store.whenSynced;
+	}
+}
+
+function encodeFrame(type: number, payload: Uint8Array) {
+	const e = encoding.createEncoder();
+	encoding.writeVarUint(e, type);
+	encoding.writeVarUint8Array(e, payload);
+	return encoding.toUint8Array(e);
+}
