@@ -1,0 +1,56 @@
+import { describe, expect, test } from 'vitest';
+import { THRESHOLD_GROUPS } from '../../../src/routes/(app)/settings/thresholds/groups';
+import { parseThresholdForm, validateThresholdOverrides, withoutDefaults } from '../../../src/lib/schemas/thresholds';
+import { DEFAULT_THRESHOLDS, THRESHOLD_KEYS } from '../../../src/lib/trade';
+
+function form(fields: Record<string, string>) {
+	const f = new FormData();
+	for (const [k, v] of Object.entries(fields)) f.set(k, v);
+	return f;
+}
+
+describe('settings groups', () => {
+	test('every threshold appears in exactly one group', () => {
+		const listed = THRESHOLD_GROUPS.flatMap((g) => g.keys);
+		expect([...listed].sort()).toEqual([...THRESHOLD_KEYS].sort());
+		expect(new Set(listed).size).toBe(listed.length);
+	});
+});
+
+describe('validateThresholdOverrides', () => {
+	test('keeps only the values that differ from the defaults', () => {
+		const r = validateThresholdOverrides({ distanceWarnMm: 75, distanceFailMm: 120 });
+		expect(r).toEqual({ ok: true, overrides: { distanceFailMm: 120 } });
+		expect(withoutDefaults({ ...DEFAULT_THRESHOLDS })).toEqual({});
+	});
+
+	test('negative lengths, out-of-range and equal check/fail levels are refused per field', () => {
+		const neg = validateThresholdOverrides({ minWallThicknessStudMm: -1 });
+		expect(neg.ok).toBe(false);
+		if (!neg.ok) expect(neg.errors.minWallThicknessStudMm?.[0]).toMatch(/cannot be negative/);
+		const eq = validateThresholdOverrides({ distanceWarnMm: 100, distanceFailMm: 100 });
+		expect(eq.ok).toBe(false);
+		if (!eq.ok) expect(eq.errors.distanceWarnMm?.[0]).toMatch(/must be below the fail level/);
+		const ok = validateThresholdOverrides({ distanceWarnMm: 99, distanceFailMm: 100 });
+		expect(ok.ok).toBe(true);
+	});
+});
+
+describe('parseThresholdForm', () => {
+	test('reads numbers, comma decimals and empty fields, and returns what was typed', () => {
+		const { values, result } = parseThresholdForm(form({ studTorqueLimitNm: ' 7,5 ', minSpeedRpm: '', maxSurfaceTempC: '1e2' }));
+		expect(values.studTorqueLimitNm).toBe('7,5');
+		expect(result).toEqual({ ok: true, overrides: { studTorqueLimitNm: 7.5, maxSurfaceTempC: 100 } });
+	});
+
+	test('text that is not a number is an error beside its field, together with the other fields’ errors', () => {
+		const { values, result } = parseThresholdForm(form({ maxSurfaceTempC: '12 mm', distanceFailMm: '-5', padCureMin: '0x10' }));
+		expect(values.maxSurfaceTempC).toBe('12 mm');
+		expect(result.ok).toBe(false);
+		if (!result.ok) {
+			expect(result.errors.maxSurfaceTempC?.[0]).toMatch(/must be a number/);
+			expect(result.errors.padCureMin?.[0]).toMatch(/must be a number/);
+			expect(result.errors.distanceFailMm?.[0]).toMatch(/cannot be negative/);
+		}
+	});
+});
