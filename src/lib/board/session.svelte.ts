@@ -5,6 +5,8 @@ import { Awareness } from 'y-protocols/awareness';
 import type { Vec2 } from '../trade';
 import { createUndoManager, readBoard, type BoardSnapshot } from './model';
 
+/* eslint-disable @typescript-eslint/no-explicit-any */
+
 export type ConnectionStatus = 'local' | 'connecting' | 'connected' | 'disconnected' | 'refused';
 
 /** What the board needs from the sync provider (src/lib/board/sync/provider.ts). */
@@ -14,7 +16,8 @@ export interface BoardSyncProvider {
 	readonly synced: boolean;
 	readonly unsynced: number;
 	readonly readOnly: boolean;
-	on(event: 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly', cb: (...args: unknown[]) => void): () => void;
+	readonly readOnlyReason?: string | null;
+	on(event: 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc', cb: (...args: any[]) => void): () => void;
 	connect(): void;
 	disconnect(): void;
 	destroy(): Promise<void>;
@@ -71,40 +74,33 @@ export function colourFor(key: string): string {
 	return palette[h % palette.length];
 }
 
+export interface Refusal {
+	reason: string;
+	kind: 'update' | 'join' | 'session';
+	at: number;
+}
+
 export class LiveBoard {
-	readonly doc: Y.Doc;
-	readonly undo: Y.UndoManager;
 	readonly awareness: Awareness;
 	#provider: BoardSyncProvider | null;
+	#doc = $state.raw<Y.Doc>(null as unknown as Y.Doc);
+	#undo: Y.UndoManager | null = null;
 	#snapshot = $state.raw<BoardSnapshot>({ points: [], routes: [], zones: [], scale: null });
 	#canUndo = $state(false);
 	#canRedo = $state(false);
 	#sync = $state<SyncState>({ status: 'local', synced: false, unsynced: 0, readOnly: false, reason: null });
+	#refusal = $state.raw<Refusal | null>(null);
 	#peers = $state.raw<Peer[]>([]);
 	#cleanup: Array<() => void> = [];
+	#unbindDoc: (() => void) | null = null;
 	#cursorTimer: ReturnType<typeof setTimeout> | null = null;
 	#pendingCursor: Vec2 | null | undefined = undefined;
 
 	constructor(doc: Y.Doc, provider: BoardSyncProvider | null, user: BoardUser) {
-		this.doc = doc;
 		this.#provider = provider;
-		this.undo = createUndoManager(doc);
 		this.awareness = provider?.awareness ?? new Awareness(doc);
 		this.awareness.setLocalState({ user, cursor: null, selection: [] });
-
-		const refresh = () => (this.#snapshot = readBoard(doc));
-		doc.on('update', refresh);
-		this.#cleanup.push(() => doc.off('update', refresh));
-		refresh();
-
-		const stacks = () => {
-			this.#canUndo = this.undo.canUndo();
-			this.#canRedo = this.undo.canRedo();
-		};
-		for (const ev of ['stack-item-added', 'stack-item-popped', 'stack-cleared'] as const) {
-			this.undo.on(ev, stacks);
-			this.#cleanup.push(() => this.undo.off(ev, stacks));
-		}
+		this.#bind(doc);
 
 		const peers = () => {
 			const out: Peer[] = [];
@@ -119,21 +115,58 @@ export class LiveBoard {
 		this.#cleanup.push(() => this.awareness.off('change', peers));
 
 		if (provider) {
-			const read = (reason?: unknown) => {
+			const read = () => {
 				this.#sync = {
 					status: provider.status,
 					synced: provider.synced,
 					unsynced: provider.unsynced,
 					readOnly: provider.readOnly,
-					reason: typeof reason === 'string' ? reason : this.#sync.reason
+					reason: provider.readOnlyReason ?? this.#refusal?.reason ?? null
 				};
 			};
 			for (const ev of ['status', 'synced', 'unsynced', 'readonly'] as const) this.#cleanup.push(provider.on(ev, () => read()));
-			this.#cleanup.push(provider.on('refused', (r) => read(typeof r === 'string' ? r : (r as { reason?: string })?.reason)));
+			this.#cleanup.push(
+				provider.on('refused', (reason, detail) => {
+					const kind = (detail as { kind?: Refusal['kind'] } | undefined)?.kind ?? 'join';
+					this.#refusal = { reason: typeof reason === 'string' ? reason : 'refused by the server', kind, at: Date.now() };
+					read();
+				})
+			);
+			// After a refused change the provider continues on a fresh copy of the server's state.
+			this.#cleanup.push(
+				provider.on('doc', (fresh) => {
+					if (fresh && fresh !== this.#doc) this.#bind(fresh as Y.Doc);
+				})
+			);
 			read();
 		}
 	}
 
+	#bind(doc: Y.Doc) {
+		this.#unbindDoc?.();
+		this.#undo?.destroy();
+		this.#doc = doc;
+		const undo = createUndoManager(doc);
+		this.#undo = undo;
+		const refresh = () => (this.#snapshot = readBoard(doc));
+		const stacks = () => {
+			this.#canUndo = undo.canUndo();
+			this.#canRedo = undo.canRedo();
+		};
+		doc.on('update', refresh);
+		for (const ev of ['stack-item-added', 'stack-item-popped', 'stack-cleared'] as const) undo.on(ev, stacks);
+		this.#unbindDoc = () => {
+			doc.off('update', refresh);
+			for (const ev of ['stack-item-added', 'stack-item-popped', 'stack-cleared'] as const) undo.off(ev, stacks);
+		};
+		refresh();
+		stacks();
+	}
+
+	/** The document being edited; it changes only after the server refused a change. */
+	get doc(): Y.Doc {
+		return this.#doc;
+	}
 	get board(): BoardSnapshot {
 		return this.#snapshot;
 	}
@@ -146,11 +179,19 @@ export class LiveBoard {
 	get sync(): SyncState {
 		return this.#sync;
 	}
+	/** The last refusal by the server, to tell the person why. */
+	get refusal(): Refusal | null {
+		return this.#refusal;
+	}
 	get peers(): Peer[] {
 		return this.#peers;
 	}
 	get online(): boolean {
 		return this.#provider !== null;
+	}
+
+	dismissRefusal() {
+		this.#refusal = null;
 	}
 
 	/** Shares the pointer position (image coordinates), at most every 40 ms. */
@@ -173,11 +214,11 @@ export class LiveBoard {
 	}
 
 	undoLast() {
-		this.undo.undo();
+		this.#undo?.undo();
 	}
 
 	redoLast() {
-		this.undo.redo();
+		this.#undo?.redo();
 	}
 
 	reconnect() {
@@ -187,7 +228,8 @@ export class LiveBoard {
 	async destroy() {
 		if (this.#cursorTimer) clearTimeout(this.#cursorTimer);
 		for (const f of this.#cleanup.splice(0)) f();
-		this.undo.destroy();
+		this.#unbindDoc?.();
+		this.#undo?.destroy();
 		if (this.#provider) await this.#provider.destroy();
 		else this.awareness.destroy();
 	}
