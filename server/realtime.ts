@@ -1,7 +1,12 @@
 // socket.io on the same HTTP server as the app. The handshake requires a valid session; the
-// live board (src/lib/server/collab) builds on the authenticated socket.
+// live board (src/lib/server/collab) builds on the authenticated socket. With several server
+// processes on one database, the socket.io PostgreSQL adapter keeps their rooms in step.
 import type { Server as HttpServer } from 'node:http';
+import pg from 'pg';
 import { Server } from 'socket.io';
+import { createAdapter } from '@socket.io/postgres-adapter';
+import { attachCollab } from '../src/lib/server/collab/server';
+import { collabOptionsFromEnv, type CollabOptions } from '../src/lib/server/collab/config';
 import { createDb } from '../src/lib/server/db/index';
 import { createAuth } from '../src/lib/server/auth/lucia';
 import * as members from '../src/lib/server/db/members';
@@ -10,17 +15,40 @@ import type { Viewer } from '../src/lib/server/auth/lucia';
 export interface RealtimeOptions {
 	databaseUrl: string;
 	origin: string;
+	/** Live board limits and timings; defaults from the environment (COLLAB_*). */
+	collab?: CollabOptions;
 }
 
 export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
 	const handle = createDb(opts.databaseUrl, 10);
 	const auth = createAuth(handle.pool, { secure: opts.origin.startsWith('https:') });
+	const collabOptions = opts.collab ?? collabOptionsFromEnv(process.env);
 	const io = new Server(httpServer, {
 		path: '/socket.io',
 		serveClient: false,
-		maxHttpBufferSize: 2_000_000,
-		cors: { origin: opts.origin, credentials: true }
+		// Above the collab limit, so an oversized board message reaches the collab layer, which
+		// logs why it closes the socket; engine.io cuts off anything larger still.
+		maxHttpBufferSize: Math.max(2_000_000, collabOptions.maxMessageBytes + 64_000),
+		cors: { origin: opts.origin, credentials: true },
+		// Browsers send Origin on the WebSocket handshake too; only the app's own pages may connect
+		// with the session cookie. (Node clients send none.)
+		allowRequest: (req, callback) => {
+			const origin = req.headers.origin;
+			callback(null, !origin || origin === opts.origin);
+		}
 	});
+	let adapterPool: pg.Pool | null = null;
+	if (collabOptions.cluster) {
+		adapterPool = new pg.Pool({ connectionString: opts.databaseUrl, max: 4 });
+		adapterPool.on('error', (err) => console.error('[realtime] adapter pool:', err.message));
+		io.adapter(
+			createAdapter(adapterPool, {
+				heartbeatInterval: 2000,
+				heartbeatTimeout: 6000,
+				errorHandler: (err) => console.error('[realtime] adapter:', err.message)
+			})
+		);
+	}
 
 	io.use(async (socket, next) => {
 		try {
@@ -51,11 +79,16 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
 		socket.emit('hello', { name: (socket.data.viewer as Viewer).name, role: (socket.data.viewer as Viewer).role });
 	});
 
+	const collab = attachCollab({ io, db: handle.db, pool: handle.pool, options: collabOptions });
+
 	return {
 		io,
 		db: handle.db,
+		collab,
 		async close() {
 			await new Promise<void>((resolve) => io.close(() => resolve()));
+			await collab.close();
+			await adapterPool?.end().catch(() => {});
 			await handle.close();
 		}
 	};

@@ -199,6 +199,7 @@ export interface MediaTable {
 // Surveys and live boards (migration 20261201110000_surveys).
 export type SurveyStatus = 'planned' | 'walking' | 'in_review' | 'approved';
 export type SurveyAssigneeRole = 'engineer' | 'technician';
+/** bigint columns come back as strings (pg does not narrow them to number); optional on insert. */
 type Bigint = ColumnType<string, string | number | bigint | undefined, string | number | bigint>;
 type Bytes = ColumnType<Buffer, Buffer | Uint8Array, Buffer | Uint8Array>;
 
@@ -242,12 +243,12 @@ export interface BoardTable {
 	title: string;
 	frozen_at: Timestamp | null;
 	snapshot: ColumnType<Buffer | null, Buffer | Uint8Array | null | undefined, Buffer | Uint8Array | null>;
-	snapshot_seq: Generated<Bigint>;
+	snapshot_seq: Bigint;
 	created_at: Stamp;
 }
 
 export interface BoardUpdateTable {
-	seq: Generated<Bigint>;
+	seq: Bigint;
 	board_id: string;
 	update: Bytes;
 	user_id: string | null;

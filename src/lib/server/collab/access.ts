@@ -1,0 +1,76 @@
+// Who may open and who may change a board, read fresh from the database each time it is asked.
+import type { DB } from '../db/index';
+import type { Role } from '../db/types';
+import { can } from '../auth/guard';
+
+export interface BoardViewer {
+	userId: string;
+	organisationId: string;
+	sessionId: string;
+	name: string;
+	role: Role;
+}
+
+export interface BoardAccess {
+	boardId: string;
+	organisationId: string;
+	surveyId: string;
+	role: Role;
+	readOnly: boolean;
+	/** Why the board is read-only for this member, in words for the user; null when writable. */
+	reason: string | null;
+}
+
+export const REASON_VIEWER = 'Your role can read this board but not change it.';
+export const REASON_APPROVED = 'This layout has been approved; the board is read-only.';
+export const REASON_ARCHIVED = 'This survey is archived; the board is read-only.';
+export const REASON_SESSION = 'Your session has ended. Sign in again to keep editing.';
+
+/**
+ * The member's access to a board of their organisation, or null when the board does not exist,
+ * belongs to another organisation or the member may not read boards (all answered alike).
+ */
+export async function loadBoardAccess(db: DB, viewer: BoardViewer, boardId: string): Promise<BoardAccess | null> {
+	const row = await db
+		.selectFrom('board')
+		.innerJoin('survey', (j) => j.onRef('survey.id', '=', 'board.survey_id').onRef('survey.organisation_id', '=', 'board.organisation_id'))
+		.innerJoin('member', (j) => j.onRef('member.organisation_id', '=', 'board.organisation_id').on('member.user_id', '=', viewer.userId))
+		.leftJoin('user_session', (j) =>
+			j
+				.on('user_session.id', '=', viewer.sessionId)
+				.onRef('user_session.organisation_id', '=', 'board.organisation_id')
+				.on('user_session.user_id', '=', viewer.userId)
+		)
+		.select([
+			'board.id',
+			'board.organisation_id',
+			'board.survey_id',
+			'board.frozen_at',
+			'survey.status',
+			'survey.archived_at',
+			'member.role',
+			'user_session.expires_at as session_expires_at'
+		])
+		.where('board.id', '=', boardId)
+		.where('board.organisation_id', '=', viewer.organisationId)
+		.executeTakeFirst();
+	if (!row || !can(row.role, 'board.read')) return null;
+	const sessionLive = row.session_expires_at !== null && new Date(row.session_expires_at).getTime() > Date.now();
+	const reason = !sessionLive
+		? REASON_SESSION
+		: !can(row.role, 'board.write')
+			? REASON_VIEWER
+			: row.frozen_at !== null || row.status === 'approved'
+				? REASON_APPROVED
+				: row.archived_at !== null
+					? REASON_ARCHIVED
+					: null;
+	return {
+		boardId: row.id,
+		organisationId: row.organisation_id,
+		surveyId: row.survey_id,
+		role: row.role,
+		readOnly: reason !== null,
+		reason
+	};
+}

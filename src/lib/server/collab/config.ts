@@ -1,0 +1,52 @@
+// Limits and timings of the live board. The entry point reads them from the environment once
+// (collabOptionsFromEnv) and passes them in; nothing here reads process.env by itself.
+
+export interface CollabOptions {
+	/** Largest y-protocols message a socket may send; a bigger one closes that socket. */
+	maxMessageBytes: number;
+	/** Sustained messages per second per socket (token bucket refill rate). */
+	messagesPerSecond: number;
+	/** Messages a socket may send in a burst before the rate applies. */
+	messageBurst: number;
+	/** A board with no connections stays in memory this long before it is compacted and unloaded. */
+	unloadGraceMs: number;
+	/** Fold the update log into the snapshot after this many updates stored by one process. */
+	compactEvery: number;
+	/**
+	 * With other server processes present, re-read the log of each open board this often, in case
+	 * a cross-process notification was lost (a dropped LISTEN connection). 0 turns it off.
+	 */
+	catchUpMs: number;
+	/** Keep rooms in step across processes through the socket.io PostgreSQL adapter. */
+	cluster: boolean;
+}
+
+export const DEFAULT_COLLAB_OPTIONS: CollabOptions = {
+	maxMessageBytes: 1_000_000,
+	messagesPerSecond: 100,
+	messageBurst: 300,
+	unloadGraceMs: 30_000,
+	compactEvery: 200,
+	catchUpMs: 10_000,
+	cluster: true
+};
+
+function int(raw: string | undefined, fallback: number, min: number, name: string) {
+	if (raw === undefined || raw === '') return fallback;
+	const n = Number(raw);
+	if (!Number.isInteger(n) || n < min) throw new Error(`${name} must be a whole number ≥ ${min} (got "${raw}")`);
+	return n;
+}
+
+export function collabOptionsFromEnv(env: Record<string, string | undefined>): CollabOptions {
+	const d = DEFAULT_COLLAB_OPTIONS;
+	return {
+		maxMessageBytes: int(env.COLLAB_MAX_MESSAGE_BYTES, d.maxMessageBytes, 1024, 'COLLAB_MAX_MESSAGE_BYTES'),
+		messagesPerSecond: int(env.COLLAB_MESSAGES_PER_SECOND, d.messagesPerSecond, 1, 'COLLAB_MESSAGES_PER_SECOND'),
+		messageBurst: int(env.COLLAB_MESSAGE_BURST, d.messageBurst, 1, 'COLLAB_MESSAGE_BURST'),
+		unloadGraceMs: int(env.COLLAB_UNLOAD_GRACE_MS, d.unloadGraceMs, 0, 'COLLAB_UNLOAD_GRACE_MS'),
+		compactEvery: int(env.COLLAB_COMPACT_EVERY, d.compactEvery, 1, 'COLLAB_COMPACT_EVERY'),
+		catchUpMs: int(env.COLLAB_CATCH_UP_MS, d.catchUpMs, 0, 'COLLAB_CATCH_UP_MS'),
+		cluster: env.COLLAB_CLUSTER === undefined ? d.cluster : !['0', 'false', 'off'].includes(env.COLLAB_CLUSTER)
+	};
+}

@@ -1,0 +1,190 @@
+// Storage of board documents: a compacted snapshot on the board row plus an append-only log of
+// the updates accepted since (board_update). Every process may append and compact; the database
+// is the one source of truth, a process's in-memory document is a cache of it.
+import { sql } from 'kysely';
+import * as Y from 'yjs';
+import type { DB } from '../db/index';
+import { PERMISSIONS } from '../auth/guard';
+
+/** Roles allowed to change a board (the guard's 'board.write'). */
+const WRITER_ROLES = [...PERMISSIONS['board.write']];
+
+export interface PendingUpdate {
+	boardId: string;
+	organisationId: string;
+	userId: string;
+	/** The socket's session: an ended session stops writing at once. */
+	sessionId: string;
+	update: Uint8Array;
+}
+
+function toBuffer(u: Uint8Array): Buffer {
+	return Buffer.isBuffer(u) ? u : Buffer.from(u.buffer, u.byteOffset, u.byteLength);
+}
+
+/**
+ * Appends updates in one statement, each only if, at this moment, the board belongs to the
+ * organisation, is not frozen, its survey is neither approved nor archived, the session is live
+ * and the member's role may write (the member row is read afresh for every update). Returns, per update, its seq when stored or null when refused.
+ * The statement is its own transaction: when the promise resolves the rows are committed.
+ */
+export async function appendUpdates(db: DB, items: PendingUpdate[]): Promise<(string | null)[]> {
+	if (items.length === 0) return [];
+	const r = await sql<{ idx: string; seq: string }>`
+		with v as (
+			select * from unnest(
+				${items.map((i) => i.boardId)}::uuid[],
+				${items.map((i) => toBuffer(i.update))}::bytea[],
+				${items.map((i) => i.userId)}::text[],
+				${items.map((i) => i.sessionId)}::text[],
+				${items.map((i) => i.organisationId)}::uuid[]
+			) with ordinality as v(board_id, body, user_id, session_id, organisation_id, idx)
+		), ok as materialized (
+			select v.idx, v.board_id, v.body, v.user_id, nextval('board_update_seq_seq') as seq
+			from v
+			join board b on b.id = v.board_id and b.organisation_id = v.organisation_id
+			join survey s on s.organisation_id = b.organisation_id and s.id = b.survey_id
+			join member m on m.organisation_id = b.organisation_id and m.user_id = v.user_id
+			join user_session us on us.id = v.session_id and us.user_id = v.user_id
+				and us.organisation_id = b.organisation_id and us.expires_at > now()
+			where b.frozen_at is null and s.status <> 'approved' and s.archived_at is null
+				and m.role = any(${WRITER_ROLES}::text[])
+			-- Waits for an approval that holds the board row (FOR UPDATE) and re-checks frozen_at
+			-- against what it committed, so nothing lands on a board after its approval.
+			for key share of b
+		), ins as (
+			insert into board_update (seq, board_id, update, user_id)
+			select seq, board_id, body, user_id from ok order by seq
+		)
+		select idx::text as idx, seq::text as seq from ok`.execute(db);
+	const out: (string | null)[] = items.map(() => null);
+	for (const row of r.rows) out[Number(row.idx) - 1] = row.seq;
+	return out;
+}
+
+export interface LoadedBoard {
+	/** seq of every log row applied (the snapshot's rows are not listed). */
+	seqs: string[];
+	snapshotSeq: string;
+	/** Rows that could not be applied (logged, skipped). */
+	bad: string[];
+}
+
+/**
+ * Applies the stored state of a board to `doc`: the snapshot, then every row still in the log.
+ * Both are read in one repeatable-read transaction so a compaction in between cannot hide rows.
+ */
+export async function loadInto(db: DB, boardId: string, doc: Y.Doc, origin: unknown = 'storage'): Promise<LoadedBoard | null> {
+	const read = await db
+		.transaction()
+		.setIsolationLevel('repeatable read')
+		.execute(async (trx) => {
+			const board = await trx.selectFrom('board').select(['snapshot', 'snapshot_seq']).where('id', '=', boardId).executeTakeFirst();
+			if (!board) return null;
+			const rows = await trx.selectFrom('board_update').select(['seq', 'update']).where('board_id', '=', boardId).orderBy('seq').execute();
+			return { board, rows };
+		});
+	if (!read) return null;
+	const bad: string[] = [];
+	if (read.board.snapshot) Y.applyUpdate(doc, read.board.snapshot, origin);
+	for (const row of read.rows) {
+		try {
+			Y.applyUpdate(doc, row.update, origin);
+		} catch (e) {
+			bad.push(row.seq);
+			console.error(`[collab] board ${boardId}: stored update ${row.seq} cannot be applied: ${(e as Error).message}`);
+		}
+	}
+	return { seqs: read.rows.map((r) => r.seq), snapshotSeq: read.board.snapshot_seq, bad };
+}
+
+/** The whole stored document of a board as one update (snapshot and log merged), or null. */
+export async function readDocument(db: DB, boardId: string): Promise<Uint8Array | null> {
+	const doc = new Y.Doc({ gc: true });
+	try {
+		const loaded = await loadInto(db, boardId, doc);
+		return loaded ? Y.encodeStateAsUpdate(doc) : null;
+	} finally {
+		doc.destroy();
+	}
+}
+
+export interface CompactionResult {
+	merged: number;
+	snapshotSeq: string;
+	snapshotBytes: number;
+}
+
+/**
+ * Folds the log into the snapshot with Y.mergeUpdates and deletes exactly the rows folded in.
+ * Rows committed meanwhile (whatever their seq) stay in the log for the next round. The board
+ * row lock (FOR NO KEY UPDATE) serialises compactions without blocking appends.
+ */
+export async function compact(db: DB, boardId: string): Promise<CompactionResult | null> {
+	return db.transaction().execute(async (trx) => {
+		const board = await trx
+			.selectFrom('board')
+			.select(['snapshot', 'snapshot_seq'])
+			.where('id', '=', boardId)
+			.forNoKeyUpdate()
+			.executeTakeFirst();
+		if (!board) return null;
+		const rows = await trx.selectFrom('board_update').select(['seq', 'update']).where('board_id', '=', boardId).orderBy('seq').execute();
+		if (rows.length === 0) {
+			return { merged: 0, snapshotSeq: board.snapshot_seq, snapshotBytes: board.snapshot?.byteLength ?? 0 };
+		}
+		const parts = [...(board.snapshot ? [board.snapshot] : []), ...rows.map((r) => r.update)];
+		let merged: Uint8Array;
+		try {
+			merged = Y.mergeUpdates(parts);
+		} catch (e) {
+			// A row that cannot be merged is dropped from the snapshot (it could never be applied
+			// either); what can be applied is kept, through a document.
+			console.error(`[collab] board ${boardId}: merge failed (${(e as Error).message}); rebuilding through a document`);
+			const doc = new Y.Doc();
+			for (const p of parts) {
+				try {
+					Y.applyUpdate(doc, p);
+				} catch {
+					/* skipped, logged above */
+				}
+			}
+			merged = Y.encodeStateAsUpdate(doc);
+			doc.destroy();
+		}
+		let maxSeq = BigInt(board.snapshot_seq);
+		for (const r of rows) if (BigInt(r.seq) > maxSeq) maxSeq = BigInt(r.seq);
+		await trx
+			.updateTable('board')
+			.set({ snapshot: Buffer.from(merged), snapshot_seq: maxSeq.toString() })
+			.where('id', '=', boardId)
+			.execute();
+		await trx
+			.deleteFrom('board_update')
+			.where('board_id', '=', boardId)
+			.where('seq', 'in', rows.map((r) => r.seq))
+			.execute();
+		return { merged: rows.length, snapshotSeq: maxSeq.toString(), snapshotBytes: merged.byteLength };
+	});
+}
+
+/** Log rows of a board not in `seen`, and the snapshot when it moved past `snapshotSeq`. */
+export async function readMissing(db: DB, boardId: string, seen: Set<string>, snapshotSeq: string) {
+	return db
+		.transaction()
+		.setIsolationLevel('repeatable read')
+		.execute(async (trx) => {
+			const board = await trx.selectFrom('board').select(['snapshot_seq']).where('id', '=', boardId).executeTakeFirst();
+			if (!board) return null;
+			const snapshot =
+				BigInt(board.snapshot_seq) > BigInt(snapshotSeq)
+					? ((await trx.selectFrom('board').select(['snapshot']).where('id', '=', boardId).executeTakeFirst())?.snapshot ?? null)
+					: null;
+			const seqs = await trx.selectFrom('board_update').select('seq').where('board_id', '=', boardId).execute();
+			const unseen = seqs.map((r) => r.seq).filter((s) => !seen.has(s));
+			const rows = unseen.length
+				? await trx.selectFrom('board_update').select(['seq', 'update']).where('seq', 'in', unseen).orderBy('seq').execute()
+				: [];
+			return { snapshotSeq: board.snapshot_seq, snapshot, rows };
+		});
+}

@@ -1,0 +1,645 @@
+// The live board on socket.io, in the hook style: authenticate (the handshake, then the board
+// access on join), load (snapshot + log into a Y.Doc on first join), store (each update is
+// checked and appended before anyone sees it), unload (compact and drop the document once the
+// last connection has been gone for a grace period).
+//
+// Order for an update: decode → check permission and append (one SQL statement, group-committed)
+// → apply to the in-memory document → send to the other sockets of the room, here and, through
+// the socket.io PostgreSQL adapter, in the other processes → acknowledge to the sender.
+import type { Server, Socket } from 'socket.io';
+import type pg from 'pg';
+import * as Y from 'yjs';
+import * as decoding from 'lib0/decoding';
+import * as encoding from 'lib0/encoding';
+import { Awareness, applyAwarenessUpdate, encodeAwarenessUpdate, removeAwarenessStates } from 'y-protocols/awareness';
+import * as syncProtocol from 'y-protocols/sync';
+import type { DB } from '../db/index';
+import { awarenessStateSchema, binaryMessageSchema, joinRequestSchema } from '../../schemas/collab';
+import {
+	EVENT_CLOSED,
+	EVENT_JOIN,
+	EVENT_MESSAGE,
+	EVENT_STATE,
+	MESSAGE_AWARENESS,
+	MESSAGE_SYNC,
+	roomOf,
+	type BoardStateEvent,
+	type JoinReply,
+	type MessageAck
+} from '../../board/sync/protocol';
+import { loadBoardAccess, type BoardViewer } from './access';
+import { compact, loadInto, readMissing } from './persistence';
+import { UpdateWriter } from './writer';
+import { TokenBucket } from './rate-limit';
+import { decodeUpdateStrict, isCoveredBy, isEmptyUpdate } from './update-check';
+import type { CollabOptions } from './config';
+import { BOARD_CHANNEL } from './notify';
+
+const RELAY_UPDATE = 'collab:update';
+const RELAY_AWARENESS = 'collab:awareness';
+const ORIGIN_STORAGE = 'storage';
+const ORIGIN_RELAY = 'relay';
+const ORIGIN_CATCH_UP = 'catch-up';
+const ORIGIN_LEAVE = 'leave';
+/** Awareness: at most this many client ids per socket and this much JSON per state. */
+const MAX_AWARENESS_CLIENTS = 4;
+const MAX_AWARENESS_STATE_CHARS = 16_000;
+
+interface RoomMember {
+	socket: Socket;
+	viewer: BoardViewer;
+	readOnly: boolean;
+	reason: string | null;
+	clientIds: Set<number>;
+}
+
+class BoardRoom {
+	readonly doc = new Y.Doc();
+	readonly awareness = new Awareness(this.doc);
+	readonly members = new Map<string, RoomMember>();
+	/** Log rows this process has applied (stored here or relayed); pruned as snapshots pass them. */
+	readonly seen = new Set<string>();
+	snapshotSeq = '0';
+	state: 'loading' | 'ready' | 'unloading' | 'gone' = 'loading';
+	ready!: Promise<void>;
+	unloaded: Promise<void> | null = null;
+	unloadTimer: ReturnType<typeof setTimeout> | null = null;
+	storedSinceCompaction = 0;
+	compacting: Promise<void> | null = null;
+	/** Relayed updates that arrive while the room is loading; applied once it is ready. */
+	early: Array<{ seq: string; update: Uint8Array }> = [];
+
+	constructor(readonly id: string) {
+		// The server is not a participant: no presence of its own.
+		this.awareness.setLocalState(null);
+	}
+
+	noteSnapshot(seq: string) {
+		if (BigInt(seq) <= BigInt(this.snapshotSeq)) return;
+		this.snapshotSeq = seq;
+		const s = BigInt(seq);
+		for (const x of this.seen) if (BigInt(x) <= s) this.seen.delete(x);
+	}
+}
+
+export interface CollabDeps {
+	io: Server;
+	db: DB;
+	/** A pool from which one client is kept to LISTEN for board state changes. */
+	pool: pg.Pool;
+	options: CollabOptions;
+	log?: Pick<Console, 'info' | 'warn' | 'error'>;
+}
+
+export interface CollabServer {
+	stats(): { rooms: number; sockets: number; pendingWrites: number; writer: UpdateWriter['stats'] };
+	close(): Promise<void>;
+}
+
+function frame(type: number, payload: Uint8Array): Uint8Array {
+	const e = encoding.createEncoder();
+	encoding.writeVarUint(e, type);
+	encoding.writeVarUint8Array(e, payload);
+	return encoding.toUint8Array(e);
+}
+
+function syncUpdateMessage(update: Uint8Array) {
+	const e = encoding.createEncoder();
+	encoding.writeVarUint(e, MESSAGE_SYNC);
+	syncProtocol.writeUpdate(e, update);
+	return encoding.toUint8Array(e);
+}
+
+function syncStep1Message(doc: Y.Doc) {
+	const e = encoding.createEncoder();
+	encoding.writeVarUint(e, MESSAGE_SYNC);
+	syncProtocol.writeSyncStep1(e, doc);
+	return encoding.toUint8Array(e);
+}
+
+function syncStep2Message(doc: Y.Doc, stateVector: Uint8Array) {
+	const e = encoding.createEncoder();
+	encoding.writeVarUint(e, MESSAGE_SYNC);
+	encoding.writeVarUint(e, syncProtocol.messageYjsSyncStep2);
+	encoding.writeVarUint8Array(e, Y.encodeStateAsUpdate(doc, stateVector));
+	return encoding.toUint8Array(e);
+}
+
+class Malformed extends Error {}
+
+function assertConsumed(d: decoding.Decoder) {
+	if (decoding.hasContent(d)) throw new Malformed('trailing bytes after the message');
+}
+
+export function attachCollab({ io, db, pool, options, log = console }: CollabDeps): CollabServer {
+	const rooms = new Map<string, BoardRoom>();
+	const writer = new UpdateWriter(db);
+	const messageSchema = binaryMessageSchema(options.maxMessageBytes);
+	let closed = false;
+
+	function otherProcesses(): number {
+		if (!options.cluster) return 0;
+		const nodes = (io.of('/').adapter as unknown as { nodesMap?: Map<string, number> }).nodesMap;
+		return nodes?.size ?? 0;
+	}
+
+	function who(socket: Socket) {
+		const v = socket.data.viewer as BoardViewer | undefined;
+		return `socket ${socket.id} (user ${v?.userId ?? '?'}${socket.data.boardId ? `, board ${socket.data.boardId}` : ''})`;
+	}
+
+	/** Closes one socket with a logged reason; the document and everyone else carry on. */
+	function closeSocket(socket: Socket, reason: string) {
+		if (!socket.connected) return;
+		log.warn(`[collab] closing ${who(socket)}: ${reason}`);
+		socket.emit(EVENT_CLOSED, { reason });
+		socket.disconnect(true);
+	}
+
+	// ---- load / unload -------------------------------------------------------------------
+
+	async function openRoom(boardId: string): Promise<BoardRoom> {
+		for (;;) {
+			const existing = rooms.get(boardId);
+			if (existing) {
+				if (existing.state === 'unloading' || existing.state === 'gone') {
+					await existing.unloaded;
+					if (rooms.get(boardId) === existing) rooms.delete(boardId);
+					continue;
+				}
+				await existing.ready;
+				return existing;
+			}
+			const room = new BoardRoom(boardId);
+			rooms.set(boardId, room);
+			wireAwareness(room);
+			room.ready = (async () => {
+				const started = performance.now();
+				const loaded = await loadInto(db, boardId, room.doc, ORIGIN_STORAGE);
+				if (!loaded) throw new Error(`board ${boardId} not found`);
+				for (const s of loaded.seqs) room.seen.add(s);
+				room.snapshotSeq = loaded.snapshotSeq;
+				for (const { seq, update } of room.early.splice(0)) applyRelayed(room, seq, update);
+				room.state = 'ready';
+				log.info(
+					`[collab] loaded board ${boardId}: ${loaded.seqs.length} log row(s) over the snapshot in ${(performance.now() - started).toFixed(1)} ms`
+				);
+			})();
+			try {
+				await room.ready;
+			} catch (e) {
+				room.state = 'gone';
+				room.unloaded = Promise.resolve();
+				rooms.delete(boardId);
+				room.doc.destroy();
+				throw e;
+			}
+			return room;
+		}
+	}
+
+	function scheduleUnload(room: BoardRoom) {
+		if (room.unloadTimer) clearTimeout(room.unloadTimer);
+		room.unloadTimer = setTimeout(() => void unload(room), options.unloadGraceMs);
+		room.unloadTimer.unref?.();
+	}
+
+	async function unload(room: BoardRoom) {
+		room.unloadTimer = null;
+		if (room.members.size > 0 || room.state !== 'ready') return;
+		room.state = 'unloading';
+		room.unloaded = (async () => {
+			try {
+				await room.compacting;
+				await runCompaction(room);
+			} finally {
+				room.awareness.destroy();
+				room.doc.destroy();
+				room.state = 'gone';
+				if (rooms.get(room.id) === room) rooms.delete(room.id);
+				log.info(`[collab] unloaded board ${room.id} (${rooms.size} open)`);
+			}
+		})();
+		await room.unloaded;
+	}
+
+	async function runCompaction(room: BoardRoom) {
+		try {
+			const r = await compact(db, room.id);
+			if (r && r.merged > 0) {
+				room.noteSnapshot(r.snapshotSeq);
+				log.info(`[collab] compacted board ${room.id}: ${r.merged} update(s) into a ${r.snapshotBytes}-byte snapshot`);
+			}
+		} catch (e) {
+			// The log is intact; the next round tries again.
+			log.error(`[collab] compacting board ${room.id} failed: ${(e as Error).message}`);
+		}
+	}
+
+	function maybeCompact(room: BoardRoom) {
+		if (room.storedSinceCompaction < options.compactEvery || room.compacting) return;
+		room.storedSinceCompaction = 0;
+		room.compacting = runCompaction(room).finally(() => {
+			room.compacting = null;
+		});
+	}
+
+	// ---- presence ------------------------------------------------------------------------
+
+	function wireAwareness(room: BoardRoom) {
+		room.awareness.on(
+			'update',
+			({ added, updated, removed }: { added: number[]; updated: number[]; removed: number[] }, origin: unknown) => {
+				const changed = added.concat(updated, removed);
+				if (changed.length === 0 || room.state === 'gone') return;
+				const update = encodeAwarenessUpdate(room.awareness, changed);
+				const message = frame(MESSAGE_AWARENESS, update);
+				const local = io.local.to(roomOf(room.id));
+				(typeof origin === 'string' && room.members.has(origin) ? local.except(origin) : local).emit(EVENT_MESSAGE, message);
+				// What a socket here did is news for the other processes; their own relays and
+				// time-outs are not.
+				if (options.cluster && (room.members.has(origin as string) || origin === ORIGIN_LEAVE)) {
+					io.serverSideEmit(RELAY_AWARENESS, room.id, Buffer.from(update).toString('base64'));
+				}
+			}
+		);
+	}
+
+	/** Checks and rewrites a socket's presence update: only its own client ids, its own name. */
+	function sanitiseAwareness(room: BoardRoom, member: RoomMember, bytes: Uint8Array): Uint8Array {
+		const d = decoding.createDecoder(bytes);
+		const n = decoding.readVarUint(d);
+		if (n > MAX_AWARENESS_CLIENTS) throw new Malformed(`presence update for ${n} clients`);
+		const e = encoding.createEncoder();
+		encoding.writeVarUint(e, n);
+		for (let i = 0; i < n; i++) {
+			const clientId = decoding.readVarUint(d);
+			const clock = decoding.readVarUint(d);
+			const json = decoding.readVarString(d);
+			if (json.length > MAX_AWARENESS_STATE_CHARS) throw new Malformed('presence state too large');
+			const owner = ownerOf(room, clientId);
+			if (owner && owner !== member.socket.id) {
+				// The same member reconnecting before the old connection timed out takes it over;
+				// anyone else speaking for that client is forging presence.
+				const previous = room.members.get(owner)!;
+				if (previous.viewer.userId !== member.viewer.userId) throw new Malformed(`presence for client ${clientId} of another member`);
+				previous.clientIds.delete(clientId);
+			}
+			if (!member.clientIds.has(clientId)) {
+				if (member.clientIds.size >= MAX_AWARENESS_CLIENTS) throw new Malformed('too many presence client ids');
+				member.clientIds.add(clientId);
+			}
+			let state: unknown;
+			try {
+				state = JSON.parse(json);
+			} catch {
+				throw new Malformed('presence state is not JSON');
+			}
+			if (state !== null) {
+				const parsed = awarenessStateSchema.safeParse(state);
+				if (!parsed.success) throw new Malformed(`presence state rejected: ${parsed.error.issues[0]?.message ?? 'invalid'}`);
+				state = {
+					...parsed.data,
+					user: { ...(parsed.data.user ?? {}), name: member.viewer.name, id: member.viewer.userId }
+				};
+			}
+			encoding.writeVarUint(e, clientId);
+			encoding.writeVarUint(e, clock);
+			encoding.writeVarString(e, JSON.stringify(state));
+		}
+		assertConsumed(d);
+		return encoding.toUint8Array(e);
+	}
+
+	function ownerOf(room: BoardRoom, clientId: number): string | null {
+		for (const [id, m] of room.members) if (m.clientIds.has(clientId)) return id;
+		return null;
+	}
+
+	// ---- updates -------------------------------------------------------------------------
+
+	/** After storage: into the document, out to the room here and in the other processes. */
+	function publishStored(room: BoardRoom, seq: string, update: Uint8Array, exceptSocket: string | null) {
+		room.seen.add(seq);
+		try {
+			Y.applyUpdate(room.doc, update, ORIGIN_STORAGE);
+		} catch (e) {
+			log.error(`[collab] board ${room.id}: stored update ${seq} did not apply: ${(e as Error).message}`);
+		}
+		const local = io.local.to(roomOf(room.id));
+		(exceptSocket ? local.except(exceptSocket) : local).emit(EVENT_MESSAGE, syncUpdateMessage(update));
+		if (options.cluster) {
+			// Base64 in JSON goes through NOTIFY directly; raw bytes would take the adapter's
+			// attachment-table path (an INSERT and a SELECT per message).
+			io.serverSideEmit(RELAY_UPDATE, room.id, seq, Buffer.from(update).toString('base64'));
+		}
+	}
+
+	function applyRelayed(room: BoardRoom, seq: string, update: Uint8Array) {
+		if (room.seen.has(seq)) return;
+		room.seen.add(seq);
+		try {
+			Y.applyUpdate(room.doc, update, ORIGIN_RELAY);
+		} catch (e) {
+			log.error(`[collab] board ${room.id}: relayed update ${seq} did not apply: ${(e as Error).message}`);
+			return;
+		}
+		io.local.to(roomOf(room.id)).emit(EVENT_MESSAGE, syncUpdateMessage(update));
+	}
+
+	function setReadOnly(member: RoomMember, readOnly: boolean, reason: string | null) {
+		if (member.readOnly === readOnly && member.reason === reason) return;
+		member.readOnly = readOnly;
+		member.reason = reason;
+		const ev: BoardStateEvent = { readOnly, reason };
+		member.socket.emit(EVENT_STATE, ev);
+	}
+
+	async function handleUpdate(room: BoardRoom, member: RoomMember, update: Uint8Array, reply: (a: MessageAck) => void) {
+		let decoded;
+		try {
+			decoded = decodeUpdateStrict(update);
+		} catch (e) {
+			throw new Malformed(`update does not decode: ${(e as Error).message}`);
+		}
+		if (isEmptyUpdate(decoded) || isCoveredBy(room.doc, decoded)) return reply({ ok: true });
+
+		const item = {
+			boardId: room.id,
+			organisationId: member.viewer.organisationId,
+			userId: member.viewer.userId,
+			sessionId: member.viewer.sessionId,
+			update
+		};
+		let seq = member.readOnly ? null : await writer.enqueue(item);
+		if (seq === null) {
+			// Refused by the stored state (or known read-only): ask afresh why, in case the
+			// member's role or the survey changed since the join.
+			const access = await loadBoardAccess(db, member.viewer, room.id);
+			if (access && !access.readOnly && member.readOnly) {
+				setReadOnly(member, false, null);
+				seq = await writer.enqueue(item);
+			}
+			if (seq === null) {
+				const reason = access?.reason ?? 'You no longer have access to this board.';
+				log.warn(`[collab] refused an update from ${who(member.socket)}: ${reason}`);
+				setReadOnly(member, true, reason);
+				reply({ ok: false, refused: reason, readOnly: true });
+				if (!access) closeSocket(member.socket, 'access to the board was withdrawn');
+				return;
+			}
+		}
+		if (room.state === 'gone') return reply({ ok: true });
+		publishStored(room, seq, update, member.socket.id);
+		reply({ ok: true });
+		room.storedSinceCompaction++;
+		maybeCompact(room);
+	}
+
+	async function handleMessage(room: BoardRoom, member: RoomMember, bytes: Uint8Array, reply: (a: MessageAck) => void) {
+		const d = decoding.createDecoder(bytes);
+		const type = decoding.readVarUint(d);
+		if (type === MESSAGE_SYNC) {
+			const step = decoding.readVarUint(d);
+			if (step === syncProtocol.messageYjsSyncStep1) {
+				const sv = decoding.readVarUint8Array(d);
+				assertConsumed(d);
+				try {
+					Y.decodeStateVector(sv);
+				} catch (e) {
+					throw new Malformed(`state vector does not decode: ${(e as Error).message}`);
+				}
+				member.socket.emit(EVENT_MESSAGE, syncStep2Message(room.doc, sv));
+				return reply({ ok: true });
+			}
+			if (step === syncProtocol.messageYjsSyncStep2 || step === syncProtocol.messageYjsUpdate) {
+				const update = decoding.readVarUint8Array(d);
+				assertConsumed(d);
+				return handleUpdate(room, member, update, reply);
+			}
+			throw new Malformed(`unknown sync step ${step}`);
+		}
+		if (type === MESSAGE_AWARENESS) {
+			const update = decoding.readVarUint8Array(d);
+			assertConsumed(d);
+			applyAwarenessUpdate(room.awareness, sanitiseAwareness(room, member, update), member.socket.id);
+			return reply({ ok: true });
+		}
+		throw new Malformed(`unknown message type ${type}`);
+	}
+
+	// ---- sockets ---------------------------------------------------------------------------
+
+	io.on('connection', (socket) => {
+		const viewer = socket.data.viewer as BoardViewer;
+		const bucket = new TokenBucket(options.messagesPerSecond, options.messageBurst);
+
+		socket.use((_packet, next) => {
+			if (bucket.take()) return next();
+			closeSocket(socket, `more than ${options.messagesPerSecond} messages per second (burst ${options.messageBurst})`);
+		});
+
+		socket.on(EVENT_JOIN, async (payload: unknown, ack: unknown) => {
+			if (typeof ack !== 'function') return closeSocket(socket, 'join without an acknowledgement callback');
+			const reply = ack as (r: JoinReply) => void;
+			const parsed = joinRequestSchema.safeParse(payload);
+			if (!parsed.success) {
+				reply({ ok: false, error: 'A board id is needed to join.' });
+				return closeSocket(socket, 'malformed join');
+			}
+			if (socket.data.boardId) return reply({ ok: false, error: 'This connection is already on a board.' });
+			const { boardId } = parsed.data;
+			try {
+				const access = await loadBoardAccess(db, viewer, boardId);
+				if (!access) {
+					log.warn(`[collab] ${who(socket)} asked for board ${boardId}: not found in the organisation`);
+					return reply({ ok: false, error: 'Board not found.' });
+				}
+				if (!socket.connected || closed) return;
+				const room = await openRoom(boardId);
+				if (!socket.connected) {
+					if (room.members.size === 0) scheduleUnload(room);
+					return;
+				}
+				if (room.unloadTimer) {
+					clearTimeout(room.unloadTimer);
+					room.unloadTimer = null;
+				}
+				socket.data.boardId = boardId;
+				room.members.set(socket.id, { socket, viewer, readOnly: access.readOnly, reason: access.reason, clientIds: new Set() });
+				socket.join(roomOf(boardId));
+				reply({ ok: true, readOnly: access.readOnly, reason: access.reason, user: { id: viewer.userId, name: viewer.name } });
+				socket.emit(EVENT_MESSAGE, syncStep1Message(room.doc));
+				if (room.awareness.states.size > 0) {
+					socket.emit(EVENT_MESSAGE, frame(MESSAGE_AWARENESS, encodeAwarenessUpdate(room.awareness, [...room.awareness.states.keys()])));
+				}
+			} catch (e) {
+				log.error(`[collab] join of board ${boardId} by ${who(socket)} failed: ${(e as Error).message}`);
+				reply({ ok: false, error: 'The board could not be opened. Try again shortly.' });
+			}
+		});
+
+		socket.on(EVENT_MESSAGE, (data: unknown, ack: unknown) => {
+			const reply = typeof ack === 'function' ? (ack as (a: MessageAck) => void) : () => {};
+			const parsed = messageSchema.safeParse(data);
+			if (!parsed.success) return closeSocket(socket, `bad message: ${parsed.error.issues[0]?.message ?? 'invalid'}`);
+			const room = socket.data.boardId ? rooms.get(socket.data.boardId as string) : undefined;
+			const member = room?.members.get(socket.id);
+			if (!room || !member || room.state !== 'ready') return closeSocket(socket, 'message before joining a board');
+			handleMessage(room, member, parsed.data, reply).catch((e: unknown) => {
+				if (e instanceof Malformed) return closeSocket(socket, `malformed message: ${e.message}`);
+				const msg = (e as Error)?.message ?? String(e);
+				// lib0 throws plain Errors on truncated input; anything unexpected is logged in full.
+				if (/Unexpected end of array|Integer out of Range|Invalid typed array length|out of bounds|Offset is outside/i.test(msg)) {
+					return closeSocket(socket, `malformed message: ${msg}`);
+				}
+				log.error(`[collab] message from ${who(socket)} failed:`, e);
+				closeSocket(socket, `message could not be handled: ${msg}`);
+			});
+		});
+
+		socket.on('disconnect', (reason) => {
+			const boardId = socket.data.boardId as string | undefined;
+			if (!boardId) return;
+			const room = rooms.get(boardId);
+			const member = room?.members.get(socket.id);
+			if (!room || !member) return;
+			room.members.delete(socket.id);
+			if (reason !== 'client namespace disconnect' && reason !== 'server namespace disconnect') {
+				log.info(`[collab] ${who(socket)} left: ${reason}`);
+			}
+			if (member.clientIds.size) removeAwarenessStates(room.awareness, [...member.clientIds], ORIGIN_LEAVE);
+			if (room.members.size === 0 && !closed) scheduleUnload(room);
+		});
+	});
+
+	// ---- other processes -----------------------------------------------------------------
+
+	if (options.cluster) {
+		io.on(RELAY_UPDATE, (boardId: unknown, seq: unknown, b64: unknown) => {
+			if (typeof boardId !== 'string' || typeof seq !== 'string' || typeof b64 !== 'string') return;
+			const room = rooms.get(boardId);
+			if (!room) return;
+			const update = Buffer.from(b64, 'base64');
+			if (room.state === 'loading') room.early.push({ seq, update });
+			else if (room.state === 'ready') applyRelayed(room, seq, update);
+		});
+		io.on(RELAY_AWARENESS, (boardId: unknown, b64: unknown) => {
+			if (typeof boardId !== 'string' || typeof b64 !== 'string') return;
+			const room = rooms.get(boardId);
+			if (!room || room.state !== 'ready') return;
+			try {
+				applyAwarenessUpdate(room.awareness, Buffer.from(b64, 'base64'), ORIGIN_RELAY);
+			} catch (e) {
+				log.error(`[collab] relayed presence for board ${boardId} did not apply: ${(e as Error).message}`);
+			}
+		});
+	}
+
+	/** Heals a lost cross-process notification: re-reads each open board's log for rows not seen. */
+	async function catchUp() {
+		if (closed || otherProcesses() === 0) return;
+		for (const room of rooms.values()) {
+			if (room.state !== 'ready' || room.members.size === 0) continue;
+			try {
+				const missing = await readMissing(db, room.id, room.seen, room.snapshotSeq);
+				if (!missing || room.state !== 'ready') continue;
+				const fresh: Uint8Array[] = [];
+				const collect = (u: Uint8Array, origin: unknown) => origin === ORIGIN_CATCH_UP && fresh.push(u);
+				room.doc.on('update', collect);
+				try {
+					if (missing.snapshot) Y.applyUpdate(room.doc, missing.snapshot, ORIGIN_CATCH_UP);
+					for (const r of missing.rows) {
+						room.seen.add(r.seq);
+						Y.applyUpdate(room.doc, r.update, ORIGIN_CATCH_UP);
+					}
+				} finally {
+					room.doc.off('update', collect);
+				}
+				room.noteSnapshot(missing.snapshotSeq);
+				if (fresh.length) {
+					log.warn(`[collab] board ${room.id}: caught up ${fresh.length} change(s) missed from another process`);
+					io.local.to(roomOf(room.id)).emit(EVENT_MESSAGE, syncUpdateMessage(Y.mergeUpdates(fresh)));
+				}
+			} catch (e) {
+				log.error(`[collab] catch-up of board ${room.id} failed: ${(e as Error).message}`);
+			}
+		}
+	}
+	const catchUpTimer = options.catchUpMs > 0 ? setInterval(() => void catchUp(), options.catchUpMs) : null;
+	catchUpTimer?.unref?.();
+
+	// ---- board state changes (approval, role changes) -----------------------------------------
+
+	async function refreshRoom(boardId: string) {
+		const room = rooms.get(boardId);
+		if (!room || room.state !== 'ready') return;
+		for (const member of [...room.members.values()]) {
+			try {
+				const access = await loadBoardAccess(db, member.viewer, boardId);
+				if (!access) closeSocket(member.socket, 'access to the board was withdrawn');
+				else setReadOnly(member, access.readOnly, access.reason);
+			} catch (e) {
+				log.error(`[collab] refreshing board ${boardId} failed: ${(e as Error).message}`);
+			}
+		}
+	}
+
+	let listener: pg.PoolClient | null = null;
+	let listenerTimer: ReturnType<typeof setTimeout> | null = null;
+	async function listen() {
+		listenerTimer = null;
+		if (closed) return;
+		try {
+			const client = await pool.connect();
+			client.on('notification', (msg) => {
+				if (msg.channel === BOARD_CHANNEL && msg.payload) void refreshRoom(msg.payload);
+			});
+			client.on('error', (e) => {
+				log.error(`[collab] board-state listener: ${e.message}`);
+				client.release(e);
+				if (listener === client) listener = null;
+				if (!closed) listenerTimer = setTimeout(() => void listen(), 2000);
+			});
+			await client.query(`LISTEN ${BOARD_CHANNEL}`);
+			listener = client;
+			if (closed) {
+				listener = null;
+				client.release();
+			}
+			// Anything announced while the listener was down: refresh every open room.
+			for (const id of rooms.keys()) void refreshRoom(id);
+		} catch (e) {
+			log.error(`[collab] board-state listener could not start: ${(e as Error).message}`);
+			if (!closed) listenerTimer = setTimeout(() => void listen(), 2000);
+		}
+	}
+	void listen();
+
+	return {
+		stats() {
+			let sockets = 0;
+			for (const r of rooms.values()) sockets += r.members.size;
+			return { rooms: rooms.size, sockets, pendingWrites: writer.pending, writer: writer.stats };
+		},
+		async close() {
+			closed = true;
+			if (catchUpTimer) clearInterval(catchUpTimer);
+			if (listenerTimer) clearTimeout(listenerTimer);
+			if (listener) {
+				const l = listener;
+				listener = null;
+				await l.query(`UNLISTEN ${BOARD_CHANNEL}`).catch(() => {});
+				l.release();
+			}
+			await writer.close();
+			// Fold what was written into snapshots; not needed for safety (the log is durable).
+			await Promise.all(
+				[...rooms.values()].map(async (room) => {
+					if (room.unloadTimer) clearTimeout(room.unloadTimer);
+					if (room.state === 'ready') await runCompaction(room);
+				})
+			);
+		}
+	};
+}
