@@ -23,7 +23,7 @@ export const POSITION_LABEL: Record<(typeof BEARING_POSITIONS)[number], string> 
 	non_drive_end: 'Non-drive end (NDE)'
 };
 
-const blankToNull = (v: unknown) => (typeof v === 'string' && v.trim() === '' ? null : v);
+const blankToNull = (v: unknown) => (v === undefined || (typeof v === 'string' && v.trim() === '') ? null : v);
 
 /** Text that may be left empty (stored as ''). */
 const text = (max: number, label: string) =>
@@ -45,6 +45,7 @@ const requiredText = (max: number, message: string, label: string) =>
 
 /** A number typed in a form or a spreadsheet: accepts "7.5", "7,5" and " 1 500 ". */
 function toNumber(v: unknown): unknown {
+	if (v === undefined) return null;
 	if (typeof v !== 'string') return v;
 	const s = v.trim().replace(/[\s\u00a0]/g, '');
 	if (s === '') return null;
@@ -128,7 +129,7 @@ export const machineFieldSchema = z.object({
 	speedSignal: flag('Speed signal available'),
 	powerKw: optionalNumber('The power', { gt: 0, max: 100000, unit: 'kW' }),
 	foundation: z.preprocess(
-		(v) => (typeof v === 'string' ? (v.trim() === '' || v.trim().toLowerCase() === 'unknown' ? null : v.trim().toLowerCase()) : v),
+		(v) => (v === undefined ? null : typeof v === 'string' ? (v.trim() === '' || v.trim().toLowerCase() === 'unknown' ? null : v.trim().toLowerCase()) : v),
 		z.enum(FOUNDATIONS, { error: 'Choose a rigid or a flexible foundation (or leave it unknown).' }).nullable()
 	),
 	hazardousArea: flag('Hazardous area'),
@@ -149,19 +150,29 @@ export type Issues = Record<string, string>;
 /** Rules across fields; checked on create and, for an update, on the row as it will be. */
 export function machineIssues(v: { hazardousArea?: boolean; hazardousZoneNote?: string }): Issues {
 	const out: Issues = {};
-	if (v.hazardousArea && !v.hazardousZoneNote?.trim()) {
+	if (v.hazardousArea === true && !String(v.hazardousZoneNote ?? '').trim()) {
 		out.hazardousZoneNote = 'Say which hazardous zone applies (e.g. "Zone 1, gas group IIA") so the installer brings certified equipment.';
 	}
 	return out;
 }
 
-function refineWith<T>(check: (v: T) => Issues) {
-	return (v: T, ctx: z.RefinementCtx) => {
-		for (const [path, message] of Object.entries(check(v))) ctx.addIssue({ code: 'custom', path: [path], message });
-	};
+/**
+ * Add the cross-field rules as checks that run even when single fields failed, so a form shows
+ * every problem at once. The checks read the raw values defensively for that reason.
+ */
+function withIssues<T extends z.ZodType>(schema: T, check: (v: z.output<T>) => Issues, paths: string[]) {
+	let out = schema as unknown as z.ZodType<z.output<T>, z.input<T>>;
+	for (const path of paths) {
+		out = out.refine((v) => !check(v)[path], {
+			path: [path],
+			error: (iss) => check(iss.input as z.output<T>)[path] ?? 'Invalid value.',
+			when: () => true
+		});
+	}
+	return out;
 }
 
-export const machineSchema = machineIdentity.extend(machineFieldSchema.shape).superRefine(refineWith(machineIssues));
+export const machineSchema = withIssues(machineIdentity.extend(machineFieldSchema.shape), machineIssues, ['hazardousZoneNote']);
 export const machineUpdateSchema = machineIdentity.extend(machineFieldSchema.shape).partial();
 export const machineFieldUpdateSchema = machineFieldSchema.partial();
 export const MACHINE_FIELD_KEYS = Object.keys(machineFieldSchema.shape) as Array<keyof z.infer<typeof machineFieldSchema>>;
@@ -185,13 +196,13 @@ const bearingBase = z.object({
 export function bearingIssues(v: { rollingElementDMm?: number | null; pitchDMm?: number | null }): Issues {
 	const out: Issues = {};
 	// The rolling elements sit on the pitch circle, so their diameter is smaller than it.
-	if (v.rollingElementDMm != null && v.pitchDMm != null && v.rollingElementDMm >= v.pitchDMm) {
+	if (typeof v.rollingElementDMm === 'number' && typeof v.pitchDMm === 'number' && v.rollingElementDMm >= v.pitchDMm) {
 		out.rollingElementDMm = 'The rolling-element diameter must be smaller than the pitch diameter.';
 	}
 	return out;
 }
 
-export const bearingSchema = bearingBase.superRefine(refineWith(bearingIssues));
+export const bearingSchema = withIssues(bearingBase, bearingIssues, ['rollingElementDMm']);
 export const bearingUpdateSchema = bearingBase.partial();
 
 // --- lists ---------------------------------------------------------------------------------
