@@ -10,6 +10,8 @@ export interface NavItem {
 
 export const NAV: NavItem[] = [
 	{ href: '/', label: 'Overview', action: 'organisation.read' },
+	{ href: '/surveys', label: 'Surveys', action: 'survey.read' },
+	{ href: '/calculators', label: 'Calculators', action: 'register.read' },
 	{ href: '/settings/members', label: 'Team', action: 'member.read' },
 	{ href: '/settings/organisation', label: 'Settings', action: 'organisation.read' }
 ];

@@ -1,0 +1,231 @@
+import { error, fail, redirect } from '@sveltejs/kit';
+import { z } from 'zod';
+import { boardCreateSchema, readSurveyPlan } from '$lib/schemas/survey';
+import { requirePage } from '$lib/server/auth/require';
+import { can } from '$lib/server/auth/guard';
+import { context } from '$lib/server/context';
+import { record } from '$lib/server/db/audit';
+import * as boards from '$lib/server/db/boards';
+import * as members from '$lib/server/db/members';
+import { machinesBySite, mediaForMachines } from '$lib/server/db/survey-progress';
+import * as surveys from '$lib/server/db/surveys';
+import type { SurveyAssigneeRole } from '$lib/server/db/types';
+import { mediaContext } from '$lib/server/media/context';
+import { MediaError } from '$lib/server/media/process';
+import { storeUpload } from '$lib/server/media/service';
+import { RegisterError } from '$lib/server/db/register';
+import type { Actions, PageServerLoad } from './$types';
+
+const uploadFail = (status: number, error: string, machineId: string | null = null) => fail(status, { action: 'upload' as const, error, machineId });
+const planFail = (values: Record<string, unknown>, errors: Record<string, string>) => fail(400, { action: 'plan' as const, values, errors });
+
+export const load: PageServerLoad = async ({ locals, params, url }) => {
+	const viewer = requirePage(locals, 'survey.read', url);
+	const db = context().handle.db;
+	const survey = await surveys.get(db, viewer.organisationId, params.id);
+	if (!survey) error(404, 'No such survey in your organisation.');
+	const canPlan = can(viewer.role, 'survey.plan');
+	const [machines, assignees, boardRows, siteMachines, people] = await Promise.all([
+		surveys.listMachines(db, viewer.organisationId, survey.id),
+		surveys.listAssignees(db, viewer.organisationId, survey.id),
+		boards.listForSurvey(db, viewer.organisationId, survey.id),
+		canPlan ? machinesBySite(db, viewer.organisationId) : Promise.resolve([]),
+		canPlan ? members.list(db, viewer.organisationId) : Promise.resolve([])
+	]);
+	const media = await mediaForMachines(
+		db,
+		viewer.organisationId,
+		machines.map((m) => m.id)
+	);
+	const open = survey.status !== 'approved' && !survey.archived_at;
+	const machineList = machines.map((m) => ({
+		id: m.id,
+		name: m.name,
+		tag: m.tag,
+		kind: m.kind,
+		hazardous: m.hazardous_area,
+		media: media.filter((x) => x.machineId === m.id),
+		boards: boardRows
+			.filter((b) => b.machine_id === m.id)
+			.map((b) => ({ id: b.id, title: b.title, mediaId: b.media_id, frozen: b.frozen_at !== null }))
+	}));
+	const left: string[] = [];
+	if (machineList.length === 0) left.push('Pick the machines to walk (edit the plan below).');
+	if (!assignees.some((a) => a.role === 'technician')) left.push('Assign at least one technician to walk the site.');
+	if (!assignees.some((a) => a.role === 'engineer')) left.push('Assign the engineer who reviews and approves.');
+	for (const m of machineList) {
+		if (m.media.length === 0) left.push(`${m.name}: take a photo or add a drawing, then open its board.`);
+		else if (m.boards.length === 0) left.push(`${m.name}: open a board on one of its photos and mark the points.`);
+	}
+	if (survey.status === 'planned' && machineList.length > 0) left.push('Start the site walk when the team is on site.');
+	return {
+		survey: {
+			id: survey.id,
+			title: survey.title,
+			siteId: survey.site_id,
+			siteName: survey.site_name,
+			status: survey.status,
+			statusLabel: surveys.SURVEY_STATUS_LABEL[survey.status],
+			plannedDate: survey.planned_date,
+			notes: survey.notes,
+			archived: survey.archived_at !== null
+		},
+		machines: machineList,
+		assignees: assignees.map((a) => ({ userId: a.user_id, name: a.name, role: a.role })),
+		left,
+		open,
+		canPlan: canPlan && open,
+		canBoard: can(viewer.role, 'board.write') && open,
+		canUpload: can(viewer.role, 'media.upload') && open,
+		canStart: can(viewer.role, 'board.write') && survey.status === 'planned' && !survey.archived_at,
+		plan: canPlan
+			? {
+					machines: siteMachines
+						.filter((m) => m.site_id === survey.site_id)
+						.map((m) => ({ id: m.id, name: m.name, tag: m.tag, kind: m.kind, area: m.area_name, hazardous: m.hazardous_area })),
+					engineers: people.filter((p) => p.role === 'engineer' || p.role === 'admin').map((p) => ({ id: p.user_id, name: p.name, role: p.role })),
+					technicians: people.filter((p) => p.role !== 'viewer').map((p) => ({ id: p.user_id, name: p.name, role: p.role }))
+				}
+			: null
+	};
+};
+
+async function openBoard(viewerOrg: string, surveyId: string, machineId: string, mediaId: string | null, title: string) {
+	const db = context().handle.db;
+	return boards.create(db, viewerOrg, { surveyId, machineId, mediaId, title });
+}
+
+const uploadFields = z.object({
+	machineId: z.uuid({ error: 'Choose the machine.' }),
+	kind: z.enum(['photo', 'drawing'], { error: 'Choose photo or drawing.' }),
+	caption: z.string().trim().max(300, 'A caption has at most 300 characters.')
+});
+
+export const actions: Actions = {
+	board: async ({ locals, params, request, url }) => {
+		const viewer = requirePage(locals, 'board.write', url);
+		const fd = await request.formData();
+		const parsed = boardCreateSchema.safeParse({ machineId: fd.get('machineId') ?? '', mediaId: fd.get('mediaId') ?? '', title: fd.get('title') ?? '' });
+		if (!parsed.success) return fail(400, { action: 'board' as const, error: parsed.error.issues[0]?.message ?? 'Choose a photo.' });
+		const db = context().handle.db;
+		const survey = await surveys.get(db, viewer.organisationId, params.id);
+		if (!survey) error(404, 'No such survey in your organisation.');
+		const title = parsed.data.title || (await defaultTitle(viewer.organisationId, parsed.data.mediaId));
+		let created: { id: string } | null;
+		try {
+			created = await openBoard(viewer.organisationId, survey.id, parsed.data.machineId, parsed.data.mediaId, title);
+		} catch (e) {
+			if (e instanceof boards.BoardRuleError) return fail(409, { action: 'board' as const, error: e.message });
+			throw e;
+		}
+		if (!created) error(404, 'No such survey in your organisation.');
+		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'board.created', subjectType: 'board', subjectId: created.id, data: { surveyId: survey.id } });
+		redirect(303, `/surveys/${survey.id}/boards/${created.id}`);
+	},
+
+	upload: async ({ locals, params, request, url }) => {
+		const viewer = requirePage(locals, 'media.upload', url);
+		const db = context().handle.db;
+		const survey = await surveys.get(db, viewer.organisationId, params.id);
+		if (!survey) error(404, 'No such survey in your organisation.');
+		let fd: FormData;
+		try {
+			fd = await request.formData();
+		} catch {
+			return uploadFail(400, 'The upload could not be read (was it cut short?). Try again.');
+		}
+		const fields = uploadFields.safeParse({ machineId: fd.get('machineId') ?? '', kind: fd.get('kind') ?? 'photo', caption: fd.get('caption') ?? '' });
+		if (!fields.success) return uploadFail(400, fields.error.issues[0]?.message ?? 'Check the fields.');
+		const file = fd.get('file');
+		if (!(file instanceof File) || file.size === 0) return uploadFail(400, 'Choose or take a photo first.', fields.data.machineId);
+		const inSurvey = (await surveys.listMachines(db, viewer.organisationId, survey.id)).some((m) => m.id === fields.data.machineId);
+		if (!inSurvey) return uploadFail(400, 'That machine is not part of this survey.');
+		const { storage, limits } = mediaContext();
+		let row: { id: string; caption: string; kind: string };
+		try {
+			row = await storeUpload(db, storage, limits, {
+				organisationId: viewer.organisationId,
+				machineId: fields.data.machineId,
+				userId: viewer.userId,
+				kind: fields.data.kind,
+				caption: fields.data.caption,
+				filename: file.name,
+				bytes: Buffer.from(await file.arrayBuffer())
+			});
+		} catch (e) {
+			if (e instanceof MediaError || e instanceof RegisterError) return uploadFail(e.status, e.message, fields.data.machineId);
+			throw e;
+		}
+		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'media.uploaded', subjectType: 'media', subjectId: row.id, data: { machineId: fields.data.machineId, surveyId: survey.id } });
+		if (!can(viewer.role, 'board.write') || fd.get('open') !== '1') return { action: 'upload' as const, uploaded: row.id, machineId: fields.data.machineId, error: null };
+		const title = row.caption || (await defaultTitle(viewer.organisationId, row.id));
+		let created: { id: string } | null;
+		try {
+			created = await openBoard(viewer.organisationId, survey.id, fields.data.machineId, row.id, title);
+		} catch (e) {
+			if (e instanceof boards.BoardRuleError) return uploadFail(409, e.message);
+			throw e;
+		}
+		if (!created) error(404, 'No such survey in your organisation.');
+		redirect(303, `/surveys/${survey.id}/boards/${created.id}`);
+	},
+
+	plan: async ({ locals, params, request, url }) => {
+		const viewer = requirePage(locals, 'survey.plan', url);
+		const db = context().handle.db;
+		const survey = await surveys.get(db, viewer.organisationId, params.id);
+		if (!survey) error(404, 'No such survey in your organisation.');
+		const fd = await request.formData();
+		fd.set('siteId', survey.site_id);
+		const form = readSurveyPlan(fd);
+		if (!form.ok) return planFail(form.values, form.errors);
+		const { data } = form;
+		const people = new Map((await members.list(db, viewer.organisationId)).map((m) => [m.user_id, m.role]));
+		if (data.engineerId && !['engineer', 'admin'].includes(people.get(data.engineerId) ?? '')) {
+			return planFail(form.values, { engineerId: 'Choose an engineer of your organisation.' });
+		}
+		if (data.engineerId && data.technicianIds.includes(data.engineerId)) {
+			return planFail(form.values, { technicianIds: 'The engineer is already assigned; leave them out of the technicians.' });
+		}
+		if (data.technicianIds.some((id) => !people.has(id) || people.get(id) === 'viewer')) {
+			return planFail(form.values, { technicianIds: 'Choose technicians among the members who can walk the site.' });
+		}
+		const assignees: Array<{ userId: string; role: SurveyAssigneeRole }> = [
+			...(data.engineerId ? [{ userId: data.engineerId, role: 'engineer' as const }] : []),
+			...data.technicianIds.map((userId) => ({ userId, role: 'technician' as const }))
+		];
+		try {
+			await surveys.update(db, viewer.organisationId, survey.id, { title: data.title, plannedDate: data.plannedDate, notes: data.notes });
+			await surveys.setMachines(db, viewer.organisationId, survey.id, data.machineIds);
+			await surveys.setAssignees(db, viewer.organisationId, survey.id, assignees);
+		} catch (e) {
+			if (e instanceof surveys.SurveyRuleError) return planFail(form.values, { machineIds: e.message });
+			throw e;
+		}
+		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'survey.plan-changed', subjectType: 'survey', subjectId: survey.id });
+		return { action: 'plan' as const, saved: true };
+	},
+
+	start: async ({ locals, params, url }) => {
+		const viewer = requirePage(locals, 'board.write', url);
+		const db = context().handle.db;
+		try {
+			const r = await surveys.setStatus(db, viewer.organisationId, params.id, 'walking', viewer.userId);
+			if (!r) error(404, 'No such survey in your organisation.');
+		} catch (e) {
+			if (e instanceof surveys.SurveyRuleError) return fail(409, { action: 'start' as const, error: e.message });
+			throw e;
+		}
+		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'survey.walk-started', subjectType: 'survey', subjectId: params.id });
+		return { action: 'start' as const, started: true };
+	}
+};
+
+async function defaultTitle(organisationId: string, mediaId: string | null): Promise<string> {
+	if (!mediaId) return 'Sketch board';
+	const db = context().handle.db;
+	const m = await db.selectFrom('media').select(['kind', 'caption', 'created_at']).where('organisation_id', '=', organisationId).where('id', '=', mediaId).executeTakeFirst();
+	if (!m) return 'Board';
+	if (m.caption) return m.caption;
+	return `${m.kind === 'drawing' ? 'Drawing' : 'Photo'} of ${new Date(m.created_at).toISOString().slice(0, 10)}`;
+}

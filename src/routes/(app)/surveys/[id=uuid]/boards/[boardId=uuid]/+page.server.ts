@@ -1,0 +1,54 @@
+import { error } from '@sveltejs/kit';
+import { requirePage } from '$lib/server/auth/require';
+import { can } from '$lib/server/auth/guard';
+import { context } from '$lib/server/context';
+import * as boards from '$lib/server/db/boards';
+import { getMachine } from '$lib/server/db/machines';
+import { getMedia } from '$lib/server/db/media';
+import { listSupplyPoints } from '$lib/server/db/register';
+import { getThresholds } from '$lib/server/db/thresholds';
+import type { BoardContext } from '$lib/board/types';
+import type { PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async ({ locals, params, url }) => {
+	const viewer = requirePage(locals, 'board.read', url);
+	const db = context().handle.db;
+	const board = await boards.get(db, viewer.organisationId, params.boardId);
+	if (!board || board.survey_id !== params.id) error(404, 'No such board in your organisation.');
+	const machine = await getMachine(db, viewer.organisationId, board.machine_id);
+	if (!machine) error(404, 'The machine of this board is not in your organisation.');
+	const [media, supply, thresholds] = await Promise.all([
+		board.media_id ? getMedia(db, viewer.organisationId, board.media_id) : Promise.resolve(null),
+		// The 24 V DC supplies of the machine's area, or of its site when it has no area.
+		listSupplyPoints(db, viewer.organisationId, machine.areaId ? { areaId: machine.areaId } : { siteId: machine.siteId }),
+		getThresholds(db, viewer.organisationId)
+	]);
+	const frozen = board.frozen_at !== null || board.survey_status === 'approved' || board.survey_archived_at !== null;
+	const ctx: BoardContext = {
+		boardId: board.id,
+		title: board.title,
+		surveyId: board.survey_id,
+		surveyTitle: board.survey_title,
+		machine: {
+			id: machine.id,
+			name: machine.name,
+			tag: machine.tag,
+			hazardousArea: machine.hazardousArea,
+			input: {
+				speedRpm: machine.speedRpm as number,
+				speedMode: machine.speedMode,
+				hasSpeedSignal: machine.speedSignal,
+				hazardousArea: machine.hazardousArea
+			}
+		},
+		media: media ? { url: media.displayUrl, width: media.width, height: media.height, kind: media.kind } : null,
+		supplyPoints: supply.items.map((s) => ({ id: s.id, name: s.name, tag: s.tag, voltageV: s.voltageV, areaName: s.areaName ?? null })),
+		// Stored overrides as they are: the rule engine reports bad ones as findings.
+		thresholds: thresholds.overrides as Record<string, unknown>,
+		user: { id: viewer.userId, name: viewer.name, role: viewer.role },
+		canEdit: can(viewer.role, 'board.write') && !frozen,
+		canDecide: can(viewer.role, 'review.decide'),
+		frozen
+	};
+	return { ctx };
+};
