@@ -193,16 +193,24 @@ const bearingBase = z.object({
 	notes: text(2000, 'The notes')
 });
 
-export function bearingIssues(v: { rollingElementDMm?: number | null; pitchDMm?: number | null }): Issues {
+export function bearingIssues(v: { rollingElements?: number | null; rollingElementDMm?: number | null; pitchDMm?: number | null }): Issues {
 	const out: Issues = {};
 	// The rolling elements sit on the pitch circle, so their diameter is smaller than it.
 	if (typeof v.rollingElementDMm === 'number' && typeof v.pitchDMm === 'number' && v.rollingElementDMm >= v.pitchDMm) {
 		out.rollingElementDMm = 'The rolling-element diameter must be smaller than the pitch diameter.';
+	} else if (
+		typeof v.rollingElements === 'number' &&
+		typeof v.rollingElementDMm === 'number' &&
+		typeof v.pitchDMm === 'number' &&
+		v.rollingElements * v.rollingElementDMm >= Math.PI * v.pitchDMm
+	) {
+		// n·d < π·D: the rolling elements must fit round the pitch circle.
+		out.rollingElements = `${v.rollingElements} rolling elements of ${v.rollingElementDMm} mm do not fit round a ${v.pitchDMm} mm pitch circle: check the count and the units.`;
 	}
 	return out;
 }
 
-export const bearingSchema = withIssues(bearingBase, bearingIssues, ['rollingElementDMm']);
+export const bearingSchema = withIssues(bearingBase, bearingIssues, ['rollingElementDMm', 'rollingElements']);
 export const bearingUpdateSchema = bearingBase.partial();
 
 // --- lists ---------------------------------------------------------------------------------

@@ -3,6 +3,8 @@
 import type { DB } from './index';
 import type { Role } from './types';
 import { hashPassword } from '../auth/password';
+import { seedRegister } from './seed-register';
+import type { Storage } from '../storage/index';
 
 export const DEMO_PASSWORD = 'spotface-demo';
 export const DEMO_ORG = 'Harrowgate Water Services (demo)';
@@ -16,7 +18,8 @@ export const DEMO_USERS: Array<{ email: string; name: string; role: Role }> = [
 export type SeedHook = (db: DB, organisationId: string) => Promise<void>;
 
 /** Seeds the demo organisation and users; later features pass hooks to add their demo rows. */
-export async function seedDemo(db: DB, hooks: SeedHook[] = []) {
+/** `storage`, when given, also receives a drawn demo picture per machine. */
+export async function seedDemo(db: DB, hooks: SeedHook[] = [], opts: { storage?: Storage } = {}) {
 	let org = await db.selectFrom('organisation').select('id').where('name', '=', DEMO_ORG).executeTakeFirst();
 	if (!org) org = await db.insertInto('organisation').values({ name: DEMO_ORG }).returning('id').executeTakeFirstOrThrow();
 	const hash = await hashPassword(DEMO_PASSWORD);
@@ -35,6 +38,7 @@ export async function seedDemo(db: DB, hooks: SeedHook[] = []) {
 			.onConflict((oc) => oc.columns(['organisation_id', 'user_id']).doNothing())
 			.execute();
 	}
+	await seedRegister(db, org.id, opts);
 	for (const hook of hooks) await hook(db, org.id);
 	return org.id;
 }
