@@ -96,7 +96,7 @@ describe('two clients on one board', () => {
 			return s?.cursor?.x === 12 && s.selection?.[0] === 'p-1' ? s : null;
 		}, 'a’s cursor on b');
 		// The name shown is the member's, whatever the client claimed; the colour is kept.
-		expect(seen.user).toMatchObject({ name: f.people.engineer.name, id: f.people.engineer.userId, color: '#1f77b4' });
+		expect(seen!.user).toMatchObject({ name: f.people.engineer.name, id: f.people.engineer.userId, color: '#1f77b4' });
 
 		await a.destroy();
 		await waitFor(() => !b.awareness.getStates().has(a.awareness.clientID), 'a gone from b’s presence');

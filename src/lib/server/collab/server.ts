@@ -131,6 +131,32 @@ function assertConsumed(d: decoding.Decoder) {
 	if (decoding.hasContent(d)) throw new Malformed('trailing bytes after the message');
 }
 
+type Frame = { kind: 'step1'; stateVector: Uint8Array } | { kind: 'update'; update: Uint8Array } | { kind: 'awareness'; update: Uint8Array };
+
+/** Reads one y-protocols frame; anything short, long or unknown is Malformed. */
+function parseFrame(bytes: Uint8Array): Frame {
+	try {
+		const d = decoding.createDecoder(bytes);
+		const type = decoding.readVarUint(d);
+		let frame: Frame;
+		if (type === MESSAGE_SYNC) {
+			const step = decoding.readVarUint(d);
+			if (step === syncProtocol.messageYjsSyncStep1) {
+				frame = { kind: 'step1', stateVector: decoding.readVarUint8Array(d) };
+				Y.decodeStateVector(frame.stateVector);
+			} else if (step === syncProtocol.messageYjsSyncStep2 || step === syncProtocol.messageYjsUpdate) {
+				frame = { kind: 'update', update: decoding.readVarUint8Array(d) };
+			} else throw new Malformed(`unknown sync step ${step}`);
+		} else if (type === MESSAGE_AWARENESS) {
+			frame = { kind: 'awareness', update: decoding.readVarUint8Array(d) };
+		} else throw new Malformed(`unknown message type ${type}`);
+		assertConsumed(d);
+		return frame;
+	} catch (e) {
+		throw e instanceof Malformed ? e : new Malformed((e as Error).message);
+	}
+}
+
 export function attachCollab({ io, db, pool, options, log = console }: CollabDeps): CollabServer {
 	const rooms = new Map<string, BoardRoom>();
 	const writer = new UpdateWriter(db);
@@ -397,35 +423,25 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 	}
 
 	async function handleMessage(room: BoardRoom, member: RoomMember, bytes: Uint8Array, reply: (a: MessageAck) => void) {
-		const d = decoding.createDecoder(bytes);
-		const type = decoding.readVarUint(d);
-		if (type === MESSAGE_SYNC) {
-			const step = decoding.readVarUint(d);
-			if (step === syncProtocol.messageYjsSyncStep1) {
-				const sv = decoding.readVarUint8Array(d);
-				assertConsumed(d);
-				try {
-					Y.decodeStateVector(sv);
-				} catch (e) {
-					throw new Malformed(`state vector does not decode: ${(e as Error).message}`);
-				}
-				member.socket.emit(EVENT_MESSAGE, syncStep2Message(room.doc, sv));
+		const message = parseFrame(bytes);
+		switch (message.kind) {
+			case 'step1': {
+				member.socket.emit(EVENT_MESSAGE, syncStep2Message(room.doc, message.stateVector));
 				return reply({ ok: true });
 			}
-			if (step === syncProtocol.messageYjsSyncStep2 || step === syncProtocol.messageYjsUpdate) {
-				const update = decoding.readVarUint8Array(d);
-				assertConsumed(d);
-				return handleUpdate(room, member, update, reply);
+			case 'update':
+				return handleUpdate(room, member, message.update, reply);
+			case 'awareness': {
+				let clean: Uint8Array;
+				try {
+					clean = sanitiseAwareness(room, member, message.update);
+				} catch (e) {
+					throw e instanceof Malformed ? e : new Malformed(`presence update does not decode: ${(e as Error).message}`);
+				}
+				applyAwarenessUpdate(room.awareness, clean, member.socket.id);
+				return reply({ ok: true });
 			}
-			throw new Malformed(`unknown sync step ${step}`);
 		}
-		if (type === MESSAGE_AWARENESS) {
-			const update = decoding.readVarUint8Array(d);
-			assertConsumed(d);
-			applyAwarenessUpdate(room.awareness, sanitiseAwareness(room, member, update), member.socket.id);
-			return reply({ ok: true });
-		}
-		throw new Malformed(`unknown message type ${type}`);
 	}
 
 	// ---- sockets ---------------------------------------------------------------------------
@@ -488,13 +504,8 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 			if (!room || !member || room.state !== 'ready') return closeSocket(socket, 'message before joining a board');
 			handleMessage(room, member, parsed.data, reply).catch((e: unknown) => {
 				if (e instanceof Malformed) return closeSocket(socket, `malformed message: ${e.message}`);
-				const msg = (e as Error)?.message ?? String(e);
-				// lib0 throws plain Errors on truncated input; anything unexpected is logged in full.
-				if (/Unexpected end of array|Integer out of Range|Invalid typed array length|out of bounds|Offset is outside/i.test(msg)) {
-					return closeSocket(socket, `malformed message: ${msg}`);
-				}
 				log.error(`[collab] message from ${who(socket)} failed:`, e);
-				closeSocket(socket, `message could not be handled: ${msg}`);
+				closeSocket(socket, `message could not be handled: ${(e as Error)?.message ?? String(e)}`);
 			});
 		});
 
