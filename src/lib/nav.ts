@@ -10,6 +10,7 @@ export interface NavItem {
 
 export const NAV: NavItem[] = [
 	{ href: '/', label: 'Overview', action: 'organisation.read' },
+	{ href: '/register', label: 'Register', action: 'register.read' },
 	{ href: '/surveys', label: 'Surveys', action: 'survey.read' },
 	{ href: '/calculators', label: 'Calculators', action: 'register.read' },
 	{ href: '/settings/members', label: 'Team', action: 'member.read' },
