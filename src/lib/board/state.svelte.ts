@@ -15,6 +15,8 @@ export class BoardViewState {
 	#tool = $state<ToolName>('select');
 	#imageW = $state(0);
 	#imageH = $state(0);
+	/** Until the person zooms or pans, the photo is refitted whenever the view changes size. */
+	#moved = false;
 
 	get viewport(): Viewport {
 		return this.#viewport;
@@ -48,23 +50,24 @@ export class BoardViewState {
 	}
 
 	resize(w: number, h: number) {
-		const first = this.#width === 0;
 		this.#width = w;
 		this.#height = h;
-		if (first && this.#imageW) this.fit();
+		if (!this.#moved && this.#imageW) this.#viewport = fit(this.#imageW, this.#imageH, w, h);
 	}
 
 	setImage(w: number, h: number) {
 		this.#imageW = w;
 		this.#imageH = h;
-		if (this.#width) this.fit();
+		if (this.#width && !this.#moved) this.fit();
 	}
 
 	fit() {
+		this.#moved = false;
 		this.#viewport = fit(this.#imageW, this.#imageH, this.#width, this.#height);
 	}
 
 	zoomAt(anchor: Vec2, factor: number) {
+		this.#moved = true;
 		this.#viewport = zoomAt(this.#viewport, anchor, factor);
 	}
 
@@ -74,10 +77,12 @@ export class BoardViewState {
 	}
 
 	pan(dx: number, dy: number) {
+		this.#moved = true;
 		this.#viewport = panBy(this.#viewport, dx, dy);
 	}
 
 	pinch(from: [Vec2, Vec2], to: [Vec2, Vec2]) {
+		this.#moved = true;
 		this.#viewport = pinch(this.#viewport, from, to);
 	}
 

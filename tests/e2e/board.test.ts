@@ -1,0 +1,267 @@
+// The live survey board in two browsers: an engineer at a laptop and a technician on a tablet
+// open the same board; a point placed by one shows up in the other with its finding badge,
+// a change of surface changes the badge on both, and the technician's cursor is drawn for
+// the engineer. The survey and the board are made through the app's own pages.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { mkdirSync } from 'node:fs';
+import sharp from 'sharp';
+import { createTestDatabase, type TestDatabase } from '../helpers/db';
+import { startApp, type RunningApp } from '../helpers/app';
+import { openBrowser, signInPage, type Browser } from '../helpers/browser';
+import { Client } from '../helpers/http';
+import { hashPassword } from '../../src/lib/server/auth/password';
+
+const PASSWORD = 'survey board pass 1';
+const SHOTS = process.env.SPOTFACE_SCREENSHOTS ?? 'test-results/board';
+
+let t: TestDatabase;
+let app: RunningApp;
+let engineer: Browser;
+let tech: Browser;
+let boardUrl = '';
+let boardId = '';
+
+async function json<T>(res: Promise<Response>, status = 201): Promise<T> {
+	const r = await res;
+	const body = await r.json();
+	expect(r.status, JSON.stringify(body)).toBe(status);
+	return body as T;
+}
+
+/** A machine photo stand-in: grey background with a darker housing shape, 1200 × 800 px. */
+function photo(): Promise<Buffer> {
+	const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="1200" height="800">
+		<rect width="1200" height="800" fill="#8a949c"/>
+		<rect x="200" y="250" width="520" height="300" rx="30" fill="#3f5566"/>
+		<rect x="720" y="360" width="260" height="80" fill="#5b6b77"/>
+		<circle cx="460" cy="400" r="90" fill="#2d3f4c"/>
+	</svg>`;
+	return sharp(Buffer.from(svg)).jpeg({ quality: 85 }).toBuffer();
+}
+
+beforeAll(async () => {
+	t = await createTestDatabase();
+	app = await startApp({ databaseUrl: t.url });
+
+	// An organisation with an admin, an engineer and a technician.
+	const org = await t.db.insertInto('organisation').values({ name: 'Fenwick Water (test)' }).returning('id').executeTakeFirstOrThrow();
+	const hash = await hashPassword(PASSWORD);
+	const people = [
+		{ id: 'u-admin', email: 'admin@fenwick.test', name: 'Ada Admin', role: 'admin' as const },
+		{ id: 'u-eng', email: 'engineer@fenwick.test', name: 'Esme Engineer', role: 'engineer' as const },
+		{ id: 'u-tech', email: 'tech@fenwick.test', name: 'Teo Technician', role: 'technician' as const }
+	];
+	for (const p of people) {
+		await t.db.insertInto('app_user').values({ id: p.id, email: p.email, name: p.name, password_hash: hash }).execute();
+		await t.db.insertInto('member').values({ organisation_id: org.id, user_id: p.id, role: p.role }).execute();
+	}
+
+	// The register through the API: site, area, a 24 V DC supply point, a pump and its photo.
+	const admin = new Client(app.url);
+	await admin.signIn('admin@fenwick.test', PASSWORD);
+	const site = await json<{ id: string }>(admin.json('POST', '/api/v1/sites', { name: 'Millbrook Works' }));
+	const area = await json<{ id: string }>(admin.json('POST', '/api/v1/areas', { siteId: site.id, name: 'Pump hall' }));
+	await json(admin.json('POST', '/api/v1/supply-points', { areaId: area.id, name: 'Junction box', tag: 'JB-3', voltageV: 24 }));
+	const machine = await json<{ id: string }>(
+		admin.json('POST', '/api/v1/machines', {
+			siteId: site.id,
+			areaId: area.id,
+			name: 'Raw water pump 2',
+			tag: 'P-102',
+			kind: 'pump',
+			speedRpm: 1480,
+			powerKw: 45,
+			foundation: 'rigid'
+		})
+	);
+	const form = new FormData();
+	form.set('file', new Blob([new Uint8Array(await photo())], { type: 'image/jpeg' }), 'pump.jpg');
+	form.set('kind', 'photo');
+	form.set('caption', 'Drive end from the walkway');
+	const media = await json<{ id: string; width: number; height: number }>(admin.request(`/api/v1/machines/${machine.id}/media`, { method: 'POST', body: form }));
+	expect([media.width, media.height]).toEqual([1200, 800]);
+
+	// The engineer plans the survey and starts the board through the pages, as on site.
+	const eng = new Client(app.url);
+	await eng.signIn('engineer@fenwick.test', PASSWORD);
+	const plan = await eng.request('/surveys/new', {
+		method: 'POST',
+		headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' },
+		body: new URLSearchParams([
+			['siteId', site.id],
+			['title', 'Pump hall spring walk'],
+			['plannedDate', '2026-04-14'],
+			['notes', ''],
+			['machineId', machine.id],
+			['engineerId', 'u-eng'],
+			['technicianId', 'u-tech']
+		]).toString()
+	});
+	expect(plan.status, await plan.clone().text()).toBe(303);
+	const surveyPath = plan.headers.get('location')!;
+	expect(surveyPath).toMatch(/^\/surveys\/[0-9a-f-]{36}$/);
+	const assigned = await t.db.selectFrom('survey_assignee').select(['user_id', 'role']).orderBy('user_id').execute();
+	expect(assigned).toEqual([
+		{ user_id: 'u-eng', role: 'engineer' },
+		{ user_id: 'u-tech', role: 'technician' }
+	]);
+
+	const start = await eng.form(`${surveyPath}?/board`, { machineId: machine.id, mediaId: media.id });
+	expect(start.status).toBe(303);
+	boardUrl = app.url + start.headers.get('location')!;
+	boardId = boardUrl.split('/').pop()!;
+	expect(boardUrl).toMatch(/\/surveys\/[0-9a-f-]{36}\/boards\/[0-9a-f-]{36}$/);
+
+	engineer = await openBrowser({ width: 1280, height: 800 });
+	tech = await openBrowser({ width: 820, height: 1180, touch: true });
+	await signInPage(engineer.page, app.url, 'engineer@fenwick.test', PASSWORD);
+	await signInPage(tech.page, app.url, 'tech@fenwick.test', PASSWORD);
+	mkdirSync(SHOTS, { recursive: true });
+});
+
+afterAll(async () => {
+	await engineer?.close();
+	await tech?.close();
+	await app?.stop();
+	await t?.drop();
+});
+
+/** Clicks the canvas at a position given as a fraction of its size. */
+async function clickCanvas(b: Browser, fx: number, fy: number) {
+	const box = (await b.page.getByTestId('board-canvas').boundingBox())!;
+	await b.page.mouse.click(box.x + box.width * fx, box.y + box.height * fy);
+}
+
+async function waitLive(b: Browser) {
+	await expect.poll(() => b.page.getByTestId('connection').getAttribute('data-status'), { timeout: 15_000 }).toBe('connected');
+	await expect.poll(() => b.page.getByTestId('connection').textContent(), { timeout: 15_000 }).toContain('all changes saved');
+}
+
+describe('the live board in two browsers', () => {
+	it('both open the board and see the connection state and each other', async () => {
+		await engineer.page.goto(boardUrl);
+		await tech.page.goto(boardUrl);
+		await waitLive(engineer);
+		await waitLive(tech);
+		await expect.poll(() => engineer.page.getByTestId('peer').allTextContents(), { timeout: 10_000 }).toEqual([expect.stringContaining('Teo Technician')]);
+		await expect.poll(() => tech.page.getByTestId('peer').allTextContents(), { timeout: 10_000 }).toEqual([expect.stringContaining('Esme Engineer')]);
+		// The photo is drawn under the board (konva exposes its stages on window).
+		await expect
+			.poll(() => engineer.page.evaluate(() => (window as unknown as { Konva: { stages: Array<{ find(s: string): unknown[] }> } }).Konva.stages[0].find('Image').length))
+			.toBe(1);
+	});
+
+	it('a point placed by the technician appears for the engineer with its finding badge', async () => {
+		await tech.page.getByRole('button', { name: 'Point', exact: true }).click();
+		await clickCanvas(tech, 0.4, 0.45);
+		// The technician's own side panel opens the new point.
+		await expect.poll(() => tech.page.getByTestId('point-editor').locator('h2').textContent()).toBe('Point P1');
+
+		await expect.poll(() => engineer.page.getByTestId('board-canvas').getAttribute('data-points'), { timeout: 10_000 }).toBe('1');
+		const row = engineer.page.getByTestId('finding-row').filter({ hasText: 'P1' });
+		await expect.poll(() => row.count(), { timeout: 10_000 }).toBe(1);
+		// A new point still lacks its surface, mounting and measurements: "Check" (triangle), not "Fail".
+		await expect.poll(() => row.locator('[data-severity]').getAttribute('data-severity')).toBe('warn');
+		expect(await row.locator('[data-severity]').textContent()).toContain('Check');
+		expect(await row.textContent()).toContain('Choose the surface');
+
+		// The marker on the engineer's canvas is the triangle of a "check".
+		const shapes = await engineer.page.evaluate(() => {
+			const K = (window as unknown as { Konva: { stages: Array<{ find(s: string): Array<{ getAttr(k: string): unknown }> }> } }).Konva;
+			return K.stages[0].find('RegularPolygon').map((n) => n.getAttr('sides'));
+		});
+		expect(shapes).toContain(3);
+		await tech.page.waitForTimeout(300);
+		await waitLive(tech);
+	});
+
+	it('the engineer sets the surface to a sheet cover: both see "Fail"', async () => {
+		await engineer.page.getByTestId('finding-row').filter({ hasText: 'P1' }).click();
+		await engineer.page.getByTestId('point-surface').selectOption('sheet_cover');
+		const techRow = tech.page.getByTestId('finding-row').filter({ hasText: 'P1' });
+		await tech.page.getByRole('tab', { name: /All points/ }).click();
+		await expect.poll(() => techRow.locator('[data-severity]').getAttribute('data-severity'), { timeout: 10_000 }).toBe('fail');
+		expect(await techRow.textContent()).toContain('sheet-metal cover');
+		// On the technician's canvas the marker is now a square (outline and fill), no triangle left.
+		const shapes = () =>
+			tech.page.evaluate(() => {
+				const K = (window as unknown as { Konva: { stages: Array<{ find(s: string): unknown[] }> } }).Konva;
+				return { squares: K.stages[0].find('Rect').length, triangles: K.stages[0].find('RegularPolygon').length };
+			});
+		await expect.poll(shapes).toEqual({ squares: 2, triangles: 0 });
+		await waitLive(engineer);
+	});
+
+	it('the technician’s cursor is shown to the engineer', async () => {
+		const box = (await tech.page.getByTestId('board-canvas').boundingBox())!;
+		await tech.page.mouse.move(box.x + box.width * 0.3, box.y + box.height * 0.3);
+		await tech.page.mouse.move(box.x + box.width * 0.6, box.y + box.height * 0.55, { steps: 5 });
+		const cursor = engineer.page.getByTestId('remote-cursor');
+		await expect.poll(() => cursor.count(), { timeout: 10_000 }).toBe(1);
+		expect(await cursor.getAttribute('data-name')).toBe('Teo Technician');
+		expect(await cursor.textContent()).toContain('Teo Technician');
+		// The cursor travels in image coordinates: somewhere on the 1200 × 800 photo.
+		const ix = Number(await cursor.getAttribute('data-x'));
+		const iy = Number(await cursor.getAttribute('data-y'));
+		expect(ix).toBeGreaterThan(0);
+		expect(ix).toBeLessThan(1200);
+		expect(iy).toBeGreaterThan(0);
+		expect(iy).toBeLessThan(800);
+	});
+
+	it('undo takes back only the user’s own edit', async () => {
+		// The engineer's last edit was the surface; undo restores "not chosen" for both.
+		await engineer.page.getByRole('button', { name: 'Undo' }).click();
+		const techRow = tech.page.getByTestId('finding-row').filter({ hasText: 'P1' });
+		await expect.poll(() => techRow.locator('[data-severity]').getAttribute('data-severity'), { timeout: 10_000 }).toBe('warn');
+		// The technician's point is still there: the engineer cannot undo someone else's edit.
+		await expect.poll(() => engineer.page.getByTestId('board-canvas').getAttribute('data-points')).toBe('1');
+		expect(await engineer.page.getByRole('button', { name: 'Undo' }).isDisabled()).toBe(true);
+	});
+
+	it('a keep-out zone and a cable route through it: the crossing is flagged for both', async () => {
+		const p = tech.page;
+		await p.getByRole('button', { name: 'Keep-out', exact: true }).click();
+		for (const [fx, fy] of [
+			[0.55, 0.3],
+			[0.7, 0.3],
+			[0.7, 0.6],
+			[0.55, 0.6],
+			[0.551, 0.301] // back on the first corner closes the zone
+		]) {
+			await clickCanvas(tech, fx, fy);
+		}
+		await expect.poll(() => p.getByTestId('zone-editor').count()).toBe(1);
+		await p.getByTestId('zone-editor').getByLabel('What rotates here').selectOption('coupling');
+
+		await p.getByRole('button', { name: 'Route', exact: true }).click();
+		await clickCanvas(tech, 0.4, 0.45); // on P1
+		await clickCanvas(tech, 0.85, 0.45);
+		await p.keyboard.press('Enter');
+		const crossing = p.getByTestId('keep-out-crossing');
+		await expect.poll(() => crossing.textContent()).toContain('Crosses keep-out: Coupling');
+		await p.getByTestId('route-end').selectOption({ label: 'Junction box (JB-3) · 24 V DC · Pump hall' });
+
+		await engineer.page.getByRole('tab', { name: /All points/ }).click();
+		const row = engineer.page.getByTestId('finding-row').filter({ hasText: 'P1' });
+		await expect.poll(() => row.locator('[data-severity]').getAttribute('data-severity'), { timeout: 10_000 }).toBe('fail');
+		await row.click();
+		await expect.poll(() => engineer.page.getByTestId('point-editor').textContent()).toContain('keep-out zone around a rotating part');
+		await waitLive(tech);
+	});
+
+	it('the board stores what was done (the server log has the point)', async () => {
+		const rows = await t.db.selectFrom('board_update').select('seq').where('board_id', '=', boardId).execute();
+		const board = await t.db.selectFrom('board').select(['snapshot']).where('id', '=', boardId).executeTakeFirstOrThrow();
+		expect(rows.length + (board.snapshot ? 1 : 0)).toBeGreaterThan(0);
+	});
+
+	it('screenshots at tablet and laptop widths show no errors', async () => {
+		await tech.page.screenshot({ path: `${SHOTS}/board-820.png` });
+		await tech.page.goto(boardUrl.replace(/\/boards\/.*$/, ''));
+		await tech.page.screenshot({ path: `${SHOTS}/survey-820.png`, fullPage: true });
+		await engineer.page.screenshot({ path: `${SHOTS}/board-1280.png` });
+		const errors = [...engineer.errors, ...tech.errors].filter((e) => !/favicon/.test(e));
+		expect(errors).toEqual([]);
+	});
+});
