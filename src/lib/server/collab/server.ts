@@ -381,15 +381,8 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		member.socket.emit(EVENT_STATE, ev);
 	}
 
-	async function handleUpdate(room: BoardRoom, member: RoomMember, update: Uint8Array, reply: (a: MessageAck) => void) {
-		let decoded;
-		try {
-			decoded = decodeUpdateStrict(update);
-		} catch (e) {
-			throw new Malformed(`update does not decode: ${(e as Error).message}`);
-		}
-		if (isEmptyUpdate(decoded) || isCoveredBy(room.doc, decoded)) return reply({ ok: true });
-
+	/** Stores a decoded, non-empty update (or refuses it) and answers the sender. */
+	async function storeUpdate(room: BoardRoom, member: RoomMember, update: Uint8Array, reply: (a: MessageAck) => void) {
 		const item = {
 			boardId: room.id,
 			organisationId: member.viewer.organisationId,
@@ -422,15 +415,28 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		maybeCompact(room);
 	}
 
-	async function handleMessage(room: BoardRoom, member: RoomMember, bytes: Uint8Array, reply: (a: MessageAck) => void) {
+	/**
+	 * Everything that can be wrong with a message is found here, synchronously, before anything
+	 * is stored or sent: a malformed message closes the socket before its next message is read.
+	 */
+	function handleMessage(room: BoardRoom, member: RoomMember, bytes: Uint8Array, reply: (a: MessageAck) => void): Promise<void> | void {
 		const message = parseFrame(bytes);
 		switch (message.kind) {
 			case 'step1': {
 				member.socket.emit(EVENT_MESSAGE, syncStep2Message(room.doc, message.stateVector));
 				return reply({ ok: true });
 			}
-			case 'update':
-				return handleUpdate(room, member, message.update, reply);
+			case 'update': {
+				let decoded;
+				try {
+					decoded = decodeUpdateStrict(message.update);
+				} catch (e) {
+					throw new Malformed(`update does not decode: ${(e as Error).message}`);
+				}
+				// Nothing new (e.g. a read-only member's sync step 2 after a reconnect): nothing to store.
+				if (isEmptyUpdate(decoded) || isCoveredBy(room.doc, decoded)) return reply({ ok: true });
+				return storeUpdate(room, member, message.update, reply);
+			}
 			case 'awareness': {
 				let clean: Uint8Array;
 				try {
@@ -502,11 +508,16 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 			const room = socket.data.boardId ? rooms.get(socket.data.boardId as string) : undefined;
 			const member = room?.members.get(socket.id);
 			if (!room || !member || room.state !== 'ready') return closeSocket(socket, 'message before joining a board');
-			handleMessage(room, member, parsed.data, reply).catch((e: unknown) => {
+			const failed = (e: unknown) => {
 				if (e instanceof Malformed) return closeSocket(socket, `malformed message: ${e.message}`);
 				log.error(`[collab] message from ${who(socket)} failed:`, e);
 				closeSocket(socket, `message could not be handled: ${(e as Error)?.message ?? String(e)}`);
-			});
+			};
+			try {
+				handleMessage(room, member, parsed.data, reply)?.catch(failed);
+			} catch (e) {
+				failed(e);
+			}
 		});
 
 		socket.on('disconnect', (reason) => {
