@@ -53,8 +53,11 @@ export function validateThresholdOverrides(input: unknown): ThresholdValidation 
 	}
 	const parsed = thresholdsSchema.safeParse(input);
 	if (!parsed.success) {
+		// An ordering between two values means little while one of them is itself out of range.
+		const fieldProblems = Object.keys(errors).length > 0 || parsed.error.issues.some((i) => i.code !== 'custom');
 		for (const issue of parsed.error.issues) {
 			if (issue.code === 'unrecognized_keys') continue; // reported above, one line per key
+			if (issue.code === 'custom' && fieldProblems) continue;
 			const k = String(issue.path[0] ?? '_');
 			if (isKey(k) && errors[k]?.length) continue; // one plain message per field is enough
 			add(errors, isKey(k) ? k : '_', issue.message);
@@ -103,7 +106,9 @@ export function parseThresholdForm(form: FormData): {
 		}
 		numbers[key] = n;
 	}
-	const checked = validateThresholdOverrides(numbers);
+	// Values equal to their defaults are left out first, so an ordering error lands on the field
+	// that was changed rather than on its unchanged partner.
+	const checked = validateThresholdOverrides(withoutDefaults(numbers));
 	if (!Object.keys(errors).length) return { values, result: checked };
 	// Report the other fields' problems too, so one round trip shows everything to correct.
 	if (!checked.ok) for (const [k, list] of Object.entries(checked.errors)) if (!errors[k as ThresholdKey]) errors[k as ThresholdKey] = list;

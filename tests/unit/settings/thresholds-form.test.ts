@@ -54,3 +54,26 @@ describe('parseThresholdForm', () => {
 		}
 	});
 });
+
+describe('where an ordering error lands', () => {
+	test('on the field that was changed, not on its unchanged partner', () => {
+		// The form sends every field; the check distance is still at its default 75 mm.
+		const all = Object.fromEntries(THRESHOLD_KEYS.map((k) => [k, String(DEFAULT_THRESHOLDS[k])]));
+		const { result } = parseThresholdForm(form({ ...all, distanceFailMm: '60' }));
+		expect(result.ok).toBe(false);
+		if (!result.ok) {
+			expect(result.errors.distanceFailMm?.[0]).toMatch(/check level \(75 mm\)/);
+			expect(result.errors.distanceWarnMm).toBeUndefined();
+		}
+	});
+
+	test('a negative value gets its own message and no ordering message on the partner', () => {
+		const all = Object.fromEntries(THRESHOLD_KEYS.map((k) => [k, String(DEFAULT_THRESHOLDS[k])]));
+		const { result } = parseThresholdForm(form({ ...all, distanceFailMm: '-5' }));
+		expect(result.ok).toBe(false);
+		if (!result.ok) {
+			expect(result.errors.distanceFailMm?.[0]).toMatch(/cannot be negative/);
+			expect(Object.keys(result.errors)).toEqual(['distanceFailMm']);
+		}
+	});
+});
