@@ -117,7 +117,7 @@ export function storageConfigFromEnv(env: Record<string, string | undefined>, da
 			region: env.S3_REGION || 'us-east-1',
 			accessKeyId: env.S3_ACCESS_KEY_ID || undefined,
 			secretAccessKey: env.S3_SECRET_ACCESS_KEY || undefined,
-			forcePathStyle: (env.S3_FORCE_PATH_STYLE ?? (env.S3_ENDPOINT ? 'true' : 'false')) === 'true',
+			forcePathStyle: (env.S3_FORCE_PATH_STYLE || (env.S3_ENDPOINT ? 'true' : 'false')) === 'true',
 			prefix: env.S3_PREFIX || undefined
 		};
 	}
