@@ -250,6 +250,50 @@ describe('the live board in two browsers', () => {
 		await waitLive(tech);
 	});
 
+	it('scale, a measurement on the photo marked as an estimate, and a tape measurement that wins', async () => {
+		const p = engineer.page;
+		const box = (await p.getByTestId('board-canvas').boundingBox())!;
+		const drag = async (from: [number, number], to: [number, number]) => {
+			await p.mouse.move(box.x + box.width * from[0], box.y + box.height * from[1]);
+			await p.mouse.down();
+			await p.mouse.move(box.x + box.width * to[0], box.y + box.height * to[1], { steps: 6 });
+			await p.mouse.up();
+		};
+		await p.getByRole('button', { name: 'Scale', exact: true }).click();
+		await drag([0.2, 0.85], [0.6, 0.85]);
+		await p.getByLabel('Real length (mm)').fill('400');
+		await p.getByRole('button', { name: 'Set scale' }).click();
+		await expect.poll(() => p.getByTestId('tool-hint').textContent()).toContain('Scale set');
+
+		await p.getByRole('tab', { name: /All points/ }).click();
+		await p.getByTestId('finding-row').filter({ hasText: 'P1' }).click(); // centres P1 without zooming
+		await p.getByRole('button', { name: 'Measure on the photo' }).click();
+		await drag([0.5, 0.5], [0.5, 0.6]);
+		// 0.1 of the canvas height against 400 mm over 0.4 of its width, at the same zoom.
+		const expected = (400 * 0.1 * box.height) / (0.4 * box.width);
+		const shown = Number((await p.getByTestId('measure-result').textContent())!.match(/≈ (\d+) mm/)![1]);
+		// The canvas stayed put while the tools changed the hint bar.
+		expect(await p.getByTestId('board-canvas').boundingBox()).toEqual(box);
+		expect(Math.abs(shown - expected)).toBeLessThanOrEqual(2);
+		await p.getByRole('button', { name: 'Use as distance to bearing of P1' }).click();
+		await expect.poll(() => p.getByTestId('distance-source').textContent()).toMatch(/In use: ≈ \d+ mm, measured on the photo.*estimate/);
+
+		await p.getByTestId('point-distance').fill('60');
+		await p.getByTestId('point-distance').press('Enter');
+		await expect.poll(() => p.getByTestId('distance-source').textContent()).toMatch(/In use: 60 mm, entered.*The photo gives ≈ \d+ mm/);
+		// The technician sees the engineer's tape measurement in the point's findings.
+		await tech.page.getByRole('tab', { name: /All points/ }).click();
+		await tech.page.getByTestId('finding-row').filter({ hasText: 'P1' }).click();
+		await expect.poll(() => tech.page.getByTestId('distance-source').textContent(), { timeout: 10_000 }).toContain('In use: 60 mm, entered');
+		// The distance rule passes now, so no "measure the distance" prompt is left.
+		expect(await tech.page.getByTestId('point-editor').textContent()).not.toContain('Measure the distance from the seat');
+		// A wrong value is refused beside the field and not stored.
+		await p.getByTestId('point-distance').fill('-5');
+		await p.getByTestId('point-distance').press('Enter');
+		await expect.poll(() => p.getByTestId('point-editor').getByRole('alert').textContent()).toContain('Distance to bearing must be 0 to 5000 mm');
+		await expect.poll(() => p.getByTestId('distance-source').textContent()).toContain('In use: 60 mm, entered');
+	});
+
 	it('the board stores what was done (the server log has the point)', async () => {
 		const rows = await t.db.selectFrom('board_update').select('seq').where('board_id', '=', boardId).execute();
 		const board = await t.db.selectFrom('board').select(['snapshot']).where('id', '=', boardId).executeTakeFirstOrThrow();
