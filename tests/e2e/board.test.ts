@@ -294,6 +294,21 @@ describe('the live board in two browsers', () => {
 		await expect.poll(() => p.getByTestId('distance-source').textContent()).toContain('In use: 60 mm, entered');
 	});
 
+	it('on the tablet a finger tap places a point; on the laptop P picks the point tool', async () => {
+		await tech.page.getByRole('button', { name: 'Point', exact: true }).tap();
+		const box = (await tech.page.getByTestId('board-canvas').boundingBox())!;
+		await tech.page.touchscreen.tap(box.x + box.width * 0.3, box.y + box.height * 0.75);
+		await expect.poll(() => engineer.page.getByTestId('board-canvas').getAttribute('data-points'), { timeout: 10_000 }).toBe('2');
+		await engineer.page.getByRole('tab', { name: /All points/ }).click();
+		await expect.poll(() => engineer.page.getByTestId('finding-row').filter({ hasText: 'P2' }).count()).toBe(1);
+
+		await engineer.page.getByTestId('board-canvas').focus();
+		await engineer.page.keyboard.press('p');
+		expect(await engineer.page.getByRole('button', { name: 'Point', exact: true }).getAttribute('aria-pressed')).toBe('true');
+		await engineer.page.keyboard.press('v');
+		expect(await engineer.page.getByRole('button', { name: 'Select', exact: true }).getAttribute('aria-pressed')).toBe('true');
+	});
+
 	it('the board stores what was done (the server log has the point)', async () => {
 		const rows = await t.db.selectFrom('board_update').select('seq').where('board_id', '=', boardId).execute();
 		const board = await t.db.selectFrom('board').select(['snapshot']).where('id', '=', boardId).executeTakeFirstOrThrow();
