@@ -111,9 +111,8 @@ const CHOICE_PROMPTS: Record<string, { rule?: string; message: string }> = {
  */
 function softenMissing(findings: Finding[]): Finding[] {
 	return findings.map((f) => {
-		if (f.rule !== 'input.invalid' || !/ is missing: /.test(f.message)) return f;
-		const path = /\(([^()]+)\)$/.exec(f.message)?.[1];
-		const prompt = path ? CHOICE_PROMPTS[path] : undefined;
+		if (f.rule !== 'input.invalid' || !f.missing || !f.field) return f;
+		const prompt = CHOICE_PROMPTS[f.field];
 		if (!prompt) return f;
 		const rule = prompt.rule ? ruleInfo(prompt.rule) : undefined;
 		return rule

@@ -14,6 +14,10 @@ export interface Finding {
 	limit?: number;
 	/** Where the rule comes from: a standard, a paper, or "common practice". */
 	reference: string;
+	/** For input findings: the input path the finding is about, e.g. 'point.surface'. */
+	field?: string;
+	/** For input findings: the value was not given at all (as opposed to given but wrong). */
+	missing?: boolean;
 }
 
 export type SeverityShape = 'circle' | 'triangle' | 'square';

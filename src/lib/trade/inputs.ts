@@ -25,13 +25,26 @@ export class InputReader {
 	readonly findings: Finding[] = [];
 
 	invalid(path: string, message: string): BadInput {
-		this.findings.push({ rule: 'input.invalid', severity: 'fail', message: `${message} (${path})`, reference: INPUT_REFERENCE });
+		this.findings.push({ rule: 'input.invalid', severity: 'fail', message: `${message} (${path})`, reference: INPUT_REFERENCE, field: path });
+		return BAD;
+	}
+
+	/** A required value that was not given: the same 'fail', flagged so a UI can prompt for it. */
+	missing(path: string, message: string): BadInput {
+		this.findings.push({
+			rule: 'input.invalid',
+			severity: 'fail',
+			message: `${message} (${path})`,
+			reference: INPUT_REFERENCE,
+			field: path,
+			missing: true
+		});
 		return BAD;
 	}
 
 	object(path: string, label: string, value: unknown, required: boolean): Read<Record<string, unknown>> {
 		if (value === undefined || value === null) {
-			return required ? this.invalid(path, `${label} missing: fill them in before the point can be checked`) : undefined;
+			return required ? this.missing(path, `${label} missing: fill them in before the point can be checked`) : undefined;
 		}
 		if (typeof value !== 'object' || Array.isArray(value)) {
 			return this.invalid(path, `${label} are not in the expected form (got ${describe(value)})`);
@@ -46,7 +59,7 @@ export class InputReader {
 		r: { min: number; max: number; unit: string; exclusiveMin?: boolean; required?: boolean; integer?: boolean }
 	): Read<number> {
 		if (value === undefined || value === null) {
-			return r.required ? this.invalid(path, `${label} is missing: enter it in ${r.unit}`) : undefined;
+			return r.required ? this.missing(path, `${label} is missing: enter it in ${r.unit}`) : undefined;
 		}
 		if (typeof value !== 'number' || !Number.isFinite(value)) {
 			return this.invalid(path, `${label} is not a number (got ${describe(value)}): enter it in ${r.unit}`);
@@ -64,7 +77,7 @@ export class InputReader {
 
 	choice<T extends string | number>(path: string, label: string, value: unknown, allowed: readonly T[], required: boolean): Read<T> {
 		if (value === undefined || value === null) {
-			return required ? this.invalid(path, `${label} is missing: choose one`) : undefined;
+			return required ? this.missing(path, `${label} is missing: choose one`) : undefined;
 		}
 		if (!(allowed as readonly unknown[]).includes(value)) {
 			return this.invalid(
@@ -77,7 +90,7 @@ export class InputReader {
 
 	flag(path: string, label: string, value: unknown, required: boolean): Read<boolean> {
 		if (value === undefined || value === null) {
-			return required ? this.invalid(path, `${label} is missing: answer yes or no`) : undefined;
+			return required ? this.missing(path, `${label} is missing: answer yes or no`) : undefined;
 		}
 		if (typeof value !== 'boolean') return this.invalid(path, `${label} must be yes or no (got ${describe(value)})`);
 		return value;
