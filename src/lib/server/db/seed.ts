@@ -4,6 +4,7 @@ import type { DB } from './index';
 import type { Role } from './types';
 import { hashPassword } from '../auth/password';
 import { seedRegister } from './seed-register';
+import { seedSurvey } from './seed-survey';
 import type { Storage } from '../storage/index';
 
 export const DEMO_PASSWORD = 'spotface-demo';
@@ -39,6 +40,7 @@ export async function seedDemo(db: DB, hooks: SeedHook[] = [], opts: { storage?:
 			.execute();
 	}
 	await seedRegister(db, org.id, opts);
+	await seedSurvey(db, org.id);
 	for (const hook of hooks) await hook(db, org.id);
 	return org.id;
 }

@@ -1,0 +1,115 @@
+// Demo survey: a site walk under way at the invented water-treatment works, with one board
+// already marked up on the sketch of raw water pump 1 so the live board has something to show
+// (a good point, a point on a fan cowl that fails, a point still missing a measurement, a
+// keep-out zone round the coupling, and two cable routes, one of them through the zone).
+// Idempotent: the survey is looked up by title.
+import * as Y from 'yjs';
+import type { DB } from './index';
+import * as surveys from './surveys';
+import * as boards from './boards';
+import { DEMO_SITE } from './seed-register';
+import { addPoint, addRoute, addZone, setScale } from '../../board/model/ops';
+
+export const DEMO_SURVEY = 'Site walk: raw water and aeration (demo)';
+
+export async function seedSurvey(db: DB, organisationId: string) {
+	const exists = await db
+		.selectFrom('survey')
+		.select('id')
+		.where('organisation_id', '=', organisationId)
+		.where('title', '=', DEMO_SURVEY)
+		.executeTakeFirst();
+	if (exists) return exists.id;
+	const site = await db
+		.selectFrom('site')
+		.select('id')
+		.where('organisation_id', '=', organisationId)
+		.where('name', '=', DEMO_SITE)
+		.executeTakeFirst();
+	if (!site) return null;
+	const machines = await db
+		.selectFrom('machine')
+		.select(['id', 'tag'])
+		.where('organisation_id', '=', organisationId)
+		.where('site_id', '=', site.id)
+		.where('tag', 'in', ['RW-P01', 'RW-M01', 'AB-01'])
+		.execute();
+	const pump = machines.find((m) => m.tag === 'RW-P01');
+	if (!pump) return null;
+	const engineer = await db.selectFrom('app_user').select('id').where('email', '=', 'engineer@harrowgate.example').executeTakeFirst();
+	const tech = await db.selectFrom('app_user').select('id').where('email', '=', 'tech@harrowgate.example').executeTakeFirst();
+	const planned = new Date();
+	planned.setDate(planned.getDate() + 7);
+	const survey = await surveys.create(db, organisationId, engineer?.id ?? null, {
+		siteId: site.id,
+		title: DEMO_SURVEY,
+		plannedDate: planned.toISOString().slice(0, 10),
+		notes: 'Raw water pumps and the aeration blower first; the blower hall needs a permit for work at height.',
+		machineIds: machines.map((m) => m.id),
+		assignees: [
+			...(engineer ? [{ userId: engineer.id, role: 'engineer' as const }] : []),
+			...(tech ? [{ userId: tech.id, role: 'technician' as const }] : [])
+		]
+	});
+	if (!survey) return null;
+	await surveys.setStatus(db, organisationId, survey.id, 'walking', engineer?.id ?? null).catch(() => {});
+
+	const photo = await db
+		.selectFrom('media')
+		.select('id')
+		.where('organisation_id', '=', organisationId)
+		.where('machine_id', '=', pump.id)
+		.where('archived_at', 'is', null)
+		.orderBy('created_at')
+		.executeTakeFirst();
+	const board = await boards.create(db, organisationId, {
+		surveyId: survey.id,
+		machineId: pump.id,
+		mediaId: photo?.id ?? null,
+		title: 'RW-P01 from the drive side'
+	});
+	if (!board) return survey.id;
+	const supply = await db
+		.selectFrom('supply_point')
+		.innerJoin('area', 'area.id', 'supply_point.area_id')
+		.select('supply_point.id')
+		.where('supply_point.organisation_id', '=', organisationId)
+		.where('area.site_id', '=', site.id)
+		.orderBy('supply_point.name')
+		.executeTakeFirst();
+
+	// Coordinates are pixels of the 1600 × 1000 demo sketch.
+	const doc = new Y.Doc();
+	const by = tech?.id ?? '';
+	setScale(doc, { a: [900, 800], b: [1420, 800], lengthMm: 800 }, 'seed');
+	const good = addPoint(doc, {
+		x: 610, y: 560, createdBy: by, component: 'Pump drive-end bearing housing', direction: 'radial_h',
+		surface: 'machined_housing', mounting: 'stud', material: 'cast_iron', flatDiameterMm: 40, wallThicknessMm: 22,
+		distanceToBearingMm: 20, surfaceTempC: 45
+	}, 'seed');
+	addPoint(doc, {
+		x: 850, y: 610, createdBy: by, component: 'Motor non-drive end (fan cowl)', direction: 'radial_v',
+		surface: 'sheet_cover', mounting: 'stud', flatDiameterMm: 35, wallThicknessMm: 2,
+		notes: 'Only flat spot in reach; the cowl is sheet metal.'
+	}, 'seed');
+	const pending = addPoint(doc, {
+		x: 960, y: 520, createdBy: by, component: 'Motor drive-end bearing housing', direction: 'radial_h',
+		surface: 'cast_housing', mounting: 'bonded_pad', flatDiameterMm: 32
+	}, 'seed');
+	addZone(doc, { label: 'Coupling', kind: 'coupling', polygon: [[680, 535], [780, 535], [780, 685], [680, 685]] }, 'seed');
+	addRoute(doc, {
+		pointId: good, supplyPointId: supply?.id ?? null, exitLabel: supply ? '' : 'Junction box JB-1',
+		vertices: [[610, 560], [610, 400], [1500, 400], [1500, 850]], lengthEnteredM: 18, crossSectionMm2: 0.75, fixings: 'clips'
+	}, 'seed');
+	addRoute(doc, {
+		pointId: pending, supplyPointId: supply?.id ?? null, exitLabel: supply ? '' : 'Junction box JB-1',
+		vertices: [[960, 520], [730, 600], [730, 900]], crossSectionMm2: 0.75, fixings: 'ties'
+	}, 'seed');
+	await db
+		.updateTable('board')
+		.set({ snapshot: Buffer.from(Y.encodeStateAsUpdate(doc)) })
+		.where('id', '=', board.id)
+		.execute();
+	doc.destroy();
+	return survey.id;
+}
