@@ -2,6 +2,7 @@
 // live board (src/lib/server/collab) builds on the authenticated socket. With several server
 // processes on one database, the socket.io PostgreSQL adapter keeps their rooms in step.
 import type { Server as HttpServer } from 'node:http';
+import { monitorEventLoopDelay } from 'node:perf_hooks';
 import pg from 'pg';
 import { Server } from 'socket.io';
 import { createAdapter } from '@socket.io/postgres-adapter';
@@ -80,12 +81,32 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
 	});
 
 	const collab = attachCollab({ io, db: handle.db, pool: handle.pool, options: collabOptions });
+	// `kill -USR2 <pid>` prints what the live board holds in this process: rooms, sockets, storage
+	// timings, event-loop delay and memory (after a full collection when run with --expose-gc).
+	const loopDelay = monitorEventLoopDelay({ resolution: 1 });
+	loopDelay.enable();
+	const printStats = () => {
+		(globalThis as { gc?: () => void }).gc?.();
+		const m = process.memoryUsage();
+		const s = collab.stats();
+		console.log(
+			`[collab] stats rooms=${s.rooms} sockets=${s.sockets} pendingWrites=${s.pendingWrites} batches=${s.writer.batches} rows=${s.writer.rows}` +
+				` largestBatch=${s.writer.largestBatch} storeP50Ms=${s.storeMs?.p50.toFixed(2) ?? 0} storeP99Ms=${s.storeMs?.p99.toFixed(2) ?? 0}` +
+				// The histogram holds whole timer intervals: less the 1 ms resolution, it is the lag.
+				` loopDelayP99Ms=${Math.max(0, loopDelay.percentile(99) / 1e6 - 1).toFixed(2)} loopDelayMaxMs=${Math.max(0, loopDelay.max / 1e6 - 1).toFixed(2)}` +
+				` rssMB=${(m.rss / 2 ** 20).toFixed(1)} heapUsedMB=${(m.heapUsed / 2 ** 20).toFixed(1)}`
+		);
+		loopDelay.reset();
+	};
+	process.on('SIGUSR2', printStats);
 
 	return {
 		io,
 		db: handle.db,
 		collab,
 		async close() {
+			process.off('SIGUSR2', printStats);
+			loopDelay.disable();
 			await new Promise<void>((resolve) => io.close(() => resolve()));
 			await collab.close();
 			await adapterPool?.end().catch(() => {});

@@ -89,7 +89,7 @@ describe('two server processes, one database', () => {
 		const id = addPoint(ghost, { x: 9, y: 9, label: 'from elsewhere' });
 		const cookie = await sessionCookie(one.url, f.people.admin);
 		const sessionId = cookie.split('=')[1];
-		const [seq] = await appendUpdates(t.db, [
+		const [seq] = await appendUpdates(t.pool, [
 			{
 				boardId,
 				organisationId: f.organisationId,

@@ -1,7 +1,7 @@
 // Storage of board documents: a compacted snapshot on the board row plus an append-only log of
 // the updates accepted since (board_update). Every process may append and compact; the database
 // is the one source of truth, a process's in-memory document is a cache of it.
-import { sql } from 'kysely';
+import type pg from 'pg';
 import * as Y from 'yjs';
 import type { DB } from '../db/index';
 import { PERMISSIONS } from '../auth/guard';
@@ -22,41 +22,56 @@ function toBuffer(u: Uint8Array): Buffer {
 	return Buffer.isBuffer(u) ? u : Buffer.from(u.buffer, u.byteOffset, u.byteLength);
 }
 
+/** What appendUpdates needs: a pg Pool or Client (named statements are prepared per connection). */
+export interface Queryable {
+	query<R extends pg.QueryResultRow>(config: pg.QueryConfig): Promise<pg.QueryResult<R>>;
+}
+
+const APPEND_SQL = `
+	with v as (
+		select * from unnest($1::uuid[], $2::bytea[], $3::text[], $4::text[], $5::uuid[])
+			with ordinality as v(board_id, body, user_id, session_id, organisation_id, idx)
+	), ok as materialized (
+		select v.idx, v.board_id, v.body, v.user_id, nextval('board_update_seq_seq') as seq
+		from v
+		join board b on b.id = v.board_id and b.organisation_id = v.organisation_id
+		join survey s on s.organisation_id = b.organisation_id and s.id = b.survey_id
+		join member m on m.organisation_id = b.organisation_id and m.user_id = v.user_id
+		join user_session us on us.id = v.session_id and us.user_id = v.user_id
+			and us.organisation_id = b.organisation_id and us.expires_at > now()
+		where b.frozen_at is null and s.status <> 'approved' and s.archived_at is null
+			and m.role = any($6::text[])
+		-- Waits for an approval that holds the board row (FOR UPDATE) and re-checks frozen_at
+		-- against what it committed, so nothing lands on a board after its approval.
+		for key share of b
+	), ins as (
+		insert into board_update (seq, board_id, update, user_id)
+		select seq, board_id, body, user_id from ok order by seq
+	)
+	select idx::text as idx, seq::text as seq from ok`;
+
 /**
  * Appends updates in one statement, each only if, at this moment, the board belongs to the
  * organisation, is not frozen, its survey is neither approved nor archived, the session is live
- * and the member's role may write (the member row is read afresh for every update). Returns, per update, its seq when stored or null when refused.
- * The statement is its own transaction: when the promise resolves the rows are committed.
+ * and the member's role may write (the member row is read afresh for every update).
+ * Returns, per update, its seq when stored or null when refused. The statement is its own
+ * transaction: when the promise resolves the rows are committed. It runs as a named (prepared)
+ * statement: planning this join costs more than running it.
  */
-export async function appendUpdates(db: DB, items: PendingUpdate[]): Promise<(string | null)[]> {
+export async function appendUpdates(db: Queryable, items: PendingUpdate[]): Promise<(string | null)[]> {
 	if (items.length === 0) return [];
-	const r = await sql<{ idx: string; seq: string }>`
-		with v as (
-			select * from unnest(
-				${items.map((i) => i.boardId)}::uuid[],
-				${items.map((i) => toBuffer(i.update))}::bytea[],
-				${items.map((i) => i.userId)}::text[],
-				${items.map((i) => i.sessionId)}::text[],
-				${items.map((i) => i.organisationId)}::uuid[]
-			) with ordinality as v(board_id, body, user_id, session_id, organisation_id, idx)
-		), ok as materialized (
-			select v.idx, v.board_id, v.body, v.user_id, nextval('board_update_seq_seq') as seq
-			from v
-			join board b on b.id = v.board_id and b.organisation_id = v.organisation_id
-			join survey s on s.organisation_id = b.organisation_id and s.id = b.survey_id
-			join member m on m.organisation_id = b.organisation_id and m.user_id = v.user_id
-			join user_session us on us.id = v.session_id and us.user_id = v.user_id
-				and us.organisation_id = b.organisation_id and us.expires_at > now()
-			where b.frozen_at is null and s.status <> 'approved' and s.archived_at is null
-				and m.role = any(${WRITER_ROLES}::text[])
-			-- Waits for an approval that holds the board row (FOR UPDATE) and re-checks frozen_at
-			-- against what it committed, so nothing lands on a board after its approval.
-			for key share of b
-		), ins as (
-			insert into board_update (seq, board_id, update, user_id)
-			select seq, board_id, body, user_id from ok order by seq
-		)
-		select idx::text as idx, seq::text as seq from ok`.execute(db);
+	const r = await db.query<{ idx: string; seq: string }>({
+		name: 'spotface_append_board_updates',
+		text: APPEND_SQL,
+		values: [
+			items.map((i) => i.boardId),
+			items.map((i) => toBuffer(i.update)),
+			items.map((i) => i.userId),
+			items.map((i) => i.sessionId),
+			items.map((i) => i.organisationId),
+			WRITER_ROLES
+		]
+	});
 	const out: (string | null)[] = items.map(() => null);
 	for (const row of r.rows) out[Number(row.idx) - 1] = row.seq;
 	return out;

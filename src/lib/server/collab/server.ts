@@ -92,7 +92,14 @@ export interface CollabDeps {
 }
 
 export interface CollabServer {
-	stats(): { rooms: number; sockets: number; pendingWrites: number; writer: UpdateWriter['stats'] };
+	stats(): {
+		rooms: number;
+		sockets: number;
+		pendingWrites: number;
+		writer: UpdateWriter['stats'];
+		/** Append + commit time per batch, recent p50/p99 (ms). */
+		storeMs: { p50: number; p99: number } | null;
+	};
 	close(): Promise<void>;
 }
 
@@ -159,10 +166,11 @@ function parseFrame(bytes: Uint8Array): Frame {
 
 export function attachCollab({ io, db, pool, options, log = console }: CollabDeps): CollabServer {
 	const rooms = new Map<string, BoardRoom>();
-	const writer = new UpdateWriter(db);
+	const writer = new UpdateWriter(pool);
 	const messageSchema = binaryMessageSchema(options.maxMessageBytes);
 	let closed = false;
 
+	/** Other server processes the adapter has heard from recently (its heartbeat). */
 	function otherProcesses(): number {
 		if (!options.cluster) return 0;
 		const nodes = (io.of('/').adapter as unknown as { nodesMap?: Map<string, number> }).nodesMap;
@@ -284,7 +292,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 				(typeof origin === 'string' && room.members.has(origin) ? local.except(origin) : local).emit(EVENT_MESSAGE, message);
 				// What a socket here did is news for the other processes; their own relays and
 				// time-outs are not.
-				if (options.cluster && (room.members.has(origin as string) || origin === ORIGIN_LEAVE)) {
+				if (otherProcesses() > 0 && (room.members.has(origin as string) || origin === ORIGIN_LEAVE)) {
 					io.serverSideEmit(RELAY_AWARENESS, room.id, Buffer.from(update).toString('base64'));
 				}
 			}
@@ -354,9 +362,11 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		}
 		const local = io.local.to(roomOf(room.id));
 		(exceptSocket ? local.except(exceptSocket) : local).emit(EVENT_MESSAGE, syncUpdateMessage(update));
-		if (options.cluster) {
+		if (otherProcesses() > 0) {
 			// Base64 in JSON goes through NOTIFY directly; raw bytes would take the adapter's
-			// attachment-table path (an INSERT and a SELECT per message).
+			// attachment-table path (an INSERT and a SELECT per message). Alone, nothing is sent:
+			// a process that starts announces itself before it takes connections, and the log
+			// re-read (catchUp) covers the moment before the others have heard of it.
 			io.serverSideEmit(RELAY_UPDATE, room.id, seq, Buffer.from(update).toString('base64'));
 		}
 	}
@@ -642,7 +652,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		stats() {
 			let sockets = 0;
 			for (const r of rooms.values()) sockets += r.members.size;
-			return { rooms: rooms.size, sockets, pendingWrites: writer.pending, writer: writer.stats };
+			return { rooms: rooms.size, sockets, pendingWrites: writer.pending, writer: writer.stats, storeMs: writer.batchTimes() };
 		},
 		async close() {
 			closed = true;
