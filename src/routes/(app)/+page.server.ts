@@ -6,7 +6,7 @@ import type { PageServerLoad } from './$types';
 export const load: PageServerLoad = async ({ locals, url }) => {
 	const viewer = requirePage(locals, 'organisation.read', url);
 	const db = context().handle.db;
-	const [memberCount, openInvitations] = await Promise.all([
+	const [memberCount, openInvitations, mySurveys] = await Promise.all([
 		db
 			.selectFrom('member')
 			.select((eb) => eb.fn.countAll<string>().as('n'))
@@ -21,13 +21,33 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 					.where('revoked_at', 'is', null)
 					.where('expires_at', '>', new Date())
 					.executeTakeFirstOrThrow()
-			: Promise.resolve({ n: '0' })
+			: Promise.resolve({ n: '0' }),
+		db
+			.selectFrom('survey')
+			.innerJoin('survey_assignee', 'survey_assignee.survey_id', 'survey.id')
+			.innerJoin('site', 'site.id', 'survey.site_id')
+			.select(['survey.id', 'survey.title', 'survey.status', 'survey.planned_date', 'site.name as site_name', 'survey_assignee.role'])
+			.where('survey.organisation_id', '=', viewer.organisationId)
+			.where('survey_assignee.user_id', '=', viewer.userId)
+			.where('survey.archived_at', 'is', null)
+			.where('survey.status', '!=', 'approved')
+			.orderBy('survey.planned_date')
+			.limit(10)
+			.execute()
 	]);
 	return {
 		welcome: url.searchParams.has('welcome'),
 		joined: url.searchParams.has('joined'),
 		members: Number(memberCount.n),
 		openInvitations: Number(openInvitations.n),
-		canInvite: can(viewer.role, 'member.invite')
+		canInvite: can(viewer.role, 'member.invite'),
+		mySurveys: mySurveys.map((x) => ({
+			id: x.id,
+			title: x.title,
+			status: x.status,
+			site: x.site_name,
+			role: x.role,
+			plannedDate: x.planned_date ? String(x.planned_date instanceof Date ? x.planned_date.toISOString().slice(0, 10) : x.planned_date) : null
+		}))
 	};
 };
