@@ -72,6 +72,12 @@ async function serverStats(app: RunningApp) {
 	return Object.fromEntries([...line.matchAll(/(\w+)=([\d.]+)/g)].map((m) => [m[1], Number(m[2])]));
 }
 
+/** CPU seconds (user + system) a process has used so far. */
+function cpuSeconds(pid: number): number {
+	const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
+	return (Number(fields[11]) + Number(fields[12])) / 100; // utime, stime in clock ticks (100/s)
+}
+
 function percentile(sorted: number[], p: number) {
 	if (sorted.length === 0) return NaN;
 	return sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
@@ -203,10 +209,15 @@ async function main() {
 		benchLoop.enable();
 		measuring = true;
 		const measureStart = now();
+		const serverCpuStart = apps.map((a) => cpuSeconds(a.process.pid!));
+		const benchCpuStart = process.cpuUsage();
 		await sleep(SECONDS * 1000);
 		measuring = false;
 		benchLoop.disable();
 		const measuredSeconds = (now() - measureStart) / 1000;
+		const serverCpu = apps.map((a, i) => (100 * (cpuSeconds(a.process.pid!) - serverCpuStart[i])) / measuredSeconds);
+		const benchCpuUsed = process.cpuUsage(benchCpuStart);
+		const benchCpu = (100 * (benchCpuUsed.user + benchCpuUsed.system)) / 1e6 / measuredSeconds;
 		running = false;
 		await Promise.all(loops);
 		clearInterval(sampler);
@@ -267,11 +278,13 @@ async function main() {
 					` | heap used before ${b.heapUsedMB}, during ${d.heapUsedMB}, after ${af.heapUsedMB}` +
 					` | open boards during ${d.rooms}, after ${af.rooms}`
 			);
+			console.log(`server ${i + 1} CPU while measuring: ${serverCpu[i].toFixed(1)} % of one core`);
 			console.log(
 				`server ${i + 1} storage: ${d.rows} updates in ${d.batches} INSERTs (largest batch ${d.largestBatch}); append+commit p50 ${d.storeP50Ms} ms, p99 ${d.storeP99Ms} ms; event-loop delay p99 ${d.loopDelayP99Ms} ms, max ${d.loopDelayMaxMs} ms`
 			);
 		});
-		console.log(`benchmark process (all clients) event-loop delay: p99 ${(benchLoop.percentile(99) / 1e6 - 1).toFixed(2)} ms, max ${(benchLoop.max / 1e6 - 1).toFixed(2)} ms`);
+		console.log(`benchmark process (all ${BOARDS * CLIENTS} clients) CPU while measuring: ${benchCpu.toFixed(1)} % of one core`);
+		console.log(`benchmark process event-loop delay: p99 ${(benchLoop.percentile(99) / 1e6 - 1).toFixed(2)} ms, max ${(benchLoop.max / 1e6 - 1).toFixed(2)} ms`);
 		console.log(`machine load average at the end: ${loadavg().map((x) => x.toFixed(2)).join(' ')} (${cpus().length} CPUs)`);
 		console.log(`boards unloaded ${unloadedAfter.toFixed(1)} s after the last client left (grace ${GRACE_MS / 1000} s)`);
 		console.log(`total run ${((now() - started) / 1000).toFixed(0)} s`);

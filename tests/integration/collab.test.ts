@@ -6,7 +6,8 @@ import { isDeepStrictEqual } from 'node:util';
 import { io as connect } from 'socket.io-client';
 import { createTestDatabase, type TestDatabase } from '../helpers/db';
 import { startApp, type RunningApp } from '../helpers/app';
-import { content, createBoardFixture, next, openProvider, sessionCookie, waitFor, type BoardFixture } from '../helpers/collab';
+import { content, createBoardFixture, next, openProvider, PASSWORD, sessionCookie, waitFor, type BoardFixture } from '../helpers/collab';
+import { Client } from '../helpers/http';
 import { addPoint, movePoint, readBoard, updatePoint, maps } from '../../src/lib/board/model';
 import { EVENT_JOIN, type JoinReply } from '../../src/lib/board/sync/protocol';
 import type { BoardProvider } from '../../src/lib/board/sync/provider';
@@ -30,7 +31,7 @@ async function storedRows(boardId: string) {
 
 beforeAll(async () => {
 	t = await createTestDatabase();
-	app = await startApp({ databaseUrl: t.url });
+	app = await startApp({ databaseUrl: t.url, env: { COLLAB_SESSION_CHECK_MS: '300' } });
 	f = await createBoardFixture(t.db, { boards: 3 });
 	for (const role of ['engineer', 'technician', 'viewer'] as const) cookies[role] = await sessionCookie(app.url, f.people[role]);
 });
@@ -197,6 +198,20 @@ describe('permissions', () => {
 		socket.emit('y', new Uint8Array([0, 2, 2, 0, 0]));
 		expect(await closed).toBe('io server disconnect');
 		expect(received).toBe(0);
+	});
+
+	it('signing out ends the live board connection too', async () => {
+		const c = new Client(app.url);
+		await c.signIn(f.people.technician.email, PASSWORD);
+		const p = provider(f.boardIds[2], `spotface_session=${c.sessionCookie}`);
+		await p.whenSynced();
+		const refused = next(p, 'refused', 15_000);
+		expect((await c.form('/sign-out', {})).status).toBe(303);
+		// Closed by the session sweep; the reconnect is then refused by the handshake.
+		const [reason, detail] = (await refused) as [string, { kind: string }];
+		expect(detail.kind).toBe('session');
+		expect(reason).toMatch(/unauthorised/);
+		expect(app.output()).toMatch(/the session has ended/);
 	});
 
 	it('a technician can write; a role change to viewer takes effect on the next update', async () => {

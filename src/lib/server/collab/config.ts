@@ -17,6 +17,8 @@ export interface CollabOptions {
 	 * a cross-process notification was lost (a dropped LISTEN connection). 0 turns it off.
 	 */
 	catchUpMs: number;
+	/** Close sockets whose session has ended (sign-out, reset, removal) this often. 0 turns it off. */
+	sessionCheckMs: number;
 	/** Keep rooms in step across processes through the socket.io PostgreSQL adapter. */
 	cluster: boolean;
 }
@@ -28,6 +30,7 @@ export const DEFAULT_COLLAB_OPTIONS: CollabOptions = {
 	unloadGraceMs: 30_000,
 	compactEvery: 200,
 	catchUpMs: 10_000,
+	sessionCheckMs: 30_000,
 	cluster: true
 };
 
@@ -47,6 +50,7 @@ export function collabOptionsFromEnv(env: Record<string, string | undefined>): C
 		unloadGraceMs: int(env.COLLAB_UNLOAD_GRACE_MS, d.unloadGraceMs, 0, 'COLLAB_UNLOAD_GRACE_MS'),
 		compactEvery: int(env.COLLAB_COMPACT_EVERY, d.compactEvery, 1, 'COLLAB_COMPACT_EVERY'),
 		catchUpMs: int(env.COLLAB_CATCH_UP_MS, d.catchUpMs, 0, 'COLLAB_CATCH_UP_MS'),
+		sessionCheckMs: int(env.COLLAB_SESSION_CHECK_MS, d.sessionCheckMs, 0, 'COLLAB_SESSION_CHECK_MS'),
 		cluster: env.COLLAB_CLUSTER === undefined ? d.cluster : !['0', 'false', 'off'].includes(env.COLLAB_CLUSTER)
 	};
 }

@@ -601,6 +601,36 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 	const catchUpTimer = options.catchUpMs > 0 ? setInterval(() => void catchUp(), options.catchUpMs) : null;
 	catchUpTimer?.unref?.();
 
+	/**
+	 * A socket lives on after its session ends (sign-out, password reset, removal from the
+	 * organisation): writes are refused at once by the append check; this also stops reads.
+	 */
+	async function sweepSessions() {
+		const bySession = new Map<string, RoomMember[]>();
+		for (const room of rooms.values()) {
+			for (const m of room.members.values()) {
+				const list = bySession.get(m.viewer.sessionId) ?? [];
+				list.push(m);
+				bySession.set(m.viewer.sessionId, list);
+			}
+		}
+		if (bySession.size === 0 || closed) return;
+		try {
+			const live = await db
+				.selectFrom('user_session')
+				.select('id')
+				.where('id', 'in', [...bySession.keys()])
+				.where('expires_at', '>', new Date())
+				.execute();
+			const alive = new Set(live.map((r) => r.id));
+			for (const [id, list] of bySession) if (!alive.has(id)) for (const m of list) closeSocket(m.socket, 'the session has ended');
+		} catch (e) {
+			log.error(`[collab] session sweep failed: ${(e as Error).message}`);
+		}
+	}
+	const sweepTimer = options.sessionCheckMs > 0 ? setInterval(() => void sweepSessions(), options.sessionCheckMs) : null;
+	sweepTimer?.unref?.();
+
 	// ---- board state changes (approval, role changes) -----------------------------------------
 
 	async function refreshRoom(boardId: string) {
@@ -657,6 +687,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		async close() {
 			closed = true;
 			if (catchUpTimer) clearInterval(catchUpTimer);
+			if (sweepTimer) clearInterval(sweepTimer);
 			if (listenerTimer) clearTimeout(listenerTimer);
 			if (listener) {
 				const l = listener;
