@@ -1,0 +1,122 @@
+// The survey and board repositories against PostgreSQL: tenancy, the status rules, approval
+// freezing every board (and telling the live board), and reading a board's stored content.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import * as Y from 'yjs';
+import pg from 'pg';
+import { createTestDatabase, type TestDatabase } from '../helpers/db';
+import { createBoardFixture, type BoardFixture } from '../helpers/collab';
+import * as surveys from '../../src/lib/server/db/surveys';
+import * as boards from '../../src/lib/server/db/boards';
+import { BOARD_CHANNEL } from '../../src/lib/server/collab/notify';
+import { compact } from '../../src/lib/server/collab/persistence';
+
+let t: TestDatabase;
+let f: BoardFixture;
+let other: BoardFixture;
+
+beforeAll(async () => {
+	t = await createTestDatabase();
+	f = await createBoardFixture(t.db, { boards: 2 });
+	other = await createBoardFixture(t.db, { name: 'Elsewhere Water' });
+});
+afterAll(async () => t?.drop());
+
+describe('surveys', () => {
+	it('creates a survey with machines and assignees of the organisation only', async () => {
+		const s = await surveys.create(t.db, f.organisationId, f.people.engineer.userId, {
+			siteId: f.siteId,
+			title: 'Blower house walk',
+			plannedDate: '2026-12-14',
+			machineIds: f.machineIds,
+			assignees: [
+				{ userId: f.people.engineer.userId, role: 'engineer' },
+				{ userId: f.people.technician.userId, role: 'technician' }
+			]
+		});
+		expect(s).toBeTruthy();
+		const got = await surveys.get(t.db, f.organisationId, s!.id);
+		expect(got).toMatchObject({ title: 'Blower house walk', status: 'planned', planned_date: '2026-12-14', site_name: 'Lower Works' });
+		expect((await surveys.listMachines(t.db, f.organisationId, s!.id)).map((m) => m.id)).toEqual(f.machineIds);
+		expect((await surveys.listAssignees(t.db, f.organisationId, s!.id)).map((a) => a.role).sort()).toEqual(['engineer', 'technician']);
+
+		// Another organisation's survey, site, machine or person is not reachable.
+		expect(await surveys.get(t.db, other.organisationId, s!.id)).toBeUndefined();
+		expect(await surveys.create(t.db, f.organisationId, null, { siteId: other.siteId, title: 'x' })).toBeNull();
+		await expect(surveys.setMachines(t.db, f.organisationId, s!.id, [other.machineIds[0]])).rejects.toThrow(/machine of the survey’s site/);
+		await expect(surveys.setAssignees(t.db, f.organisationId, s!.id, [{ userId: other.people.technician.userId, role: 'technician' }])).rejects.toThrow(
+			/Only members/
+		);
+	});
+
+	it('moves through the statuses in order only', async () => {
+		const s = (await surveys.create(t.db, f.organisationId, null, { siteId: f.siteId, title: 'Order' }))!;
+		await expect(surveys.setStatus(t.db, f.organisationId, s.id, 'approved', null)).rejects.toThrow(/cannot move to approved/);
+		expect(await surveys.setStatus(t.db, f.organisationId, s.id, 'walking', null)).toEqual({ id: s.id, status: 'walking' });
+		expect(await surveys.setStatus(t.db, f.organisationId, s.id, 'in_review', null)).toBeTruthy();
+		expect(await surveys.setStatus(t.db, f.organisationId, s.id, 'walking', null)).toBeTruthy(); // sent back
+		expect(await surveys.setStatus(t.db, other.organisationId, s.id, 'in_review', null)).toBeNull();
+	});
+
+	it('approval freezes every board of the survey and announces it to the live board', async () => {
+		const listener = new pg.Client({ connectionString: t.url });
+		await listener.connect();
+		const heard: string[] = [];
+		listener.on('notification', (m) => heard.push(m.payload!));
+		await listener.query(`LISTEN ${BOARD_CHANNEL}`);
+		try {
+			await surveys.setStatus(t.db, f.organisationId, f.surveyId, 'in_review', f.people.engineer.userId);
+			await surveys.setStatus(t.db, f.organisationId, f.surveyId, 'approved', f.people.engineer.userId);
+			const rows = await boards.listForSurvey(t.db, f.organisationId, f.surveyId);
+			expect(rows).toHaveLength(2);
+			expect(rows.every((b) => b.frozen_at !== null && b.survey_status === 'approved')).toBe(true);
+			const s = await surveys.get(t.db, f.organisationId, f.surveyId);
+			expect(s!.approved_by).toBe(f.people.engineer.userId);
+			await expect(surveys.setStatus(t.db, f.organisationId, f.surveyId, 'walking', null)).rejects.toThrow(/cannot move/);
+			await new Promise((r) => setTimeout(r, 100));
+			expect(heard).toEqual(expect.arrayContaining(f.boardIds));
+		} finally {
+			await listener.end();
+		}
+	});
+});
+
+describe('boards', () => {
+	it('are created only for machines of the survey and for media of that machine', async () => {
+		const g = await createBoardFixture(t.db, { name: 'Board Rules Works' });
+		await expect(boards.create(t.db, g.organisationId, { surveyId: g.surveyId, machineId: other.machineIds[0], title: 'x' })).rejects.toThrow(
+			/Add the machine to the survey/
+		);
+		expect(await boards.create(t.db, other.organisationId, { surveyId: g.surveyId, machineId: g.machineIds[0], title: 'x' })).toBeNull();
+		const b = await boards.create(t.db, g.organisationId, { surveyId: g.surveyId, machineId: g.machineIds[0], title: 'Gearbox side' });
+		const got = await boards.get(t.db, g.organisationId, b!.id);
+		expect(got).toMatchObject({ title: 'Gearbox side', machine_name: 'Raw water pump 1', survey_status: 'walking', frozen_at: null });
+		expect(await boards.get(t.db, other.organisationId, b!.id)).toBeUndefined();
+
+		expect(await boards.freeze(t.db, g.organisationId, b!.id)).toBe(true);
+		expect((await boards.get(t.db, g.organisationId, b!.id))!.frozen_at).not.toBeNull();
+		expect(await boards.unfreeze(t.db, g.organisationId, b!.id)).toBe(true);
+		expect(await boards.freeze(t.db, other.organisationId, b!.id)).toBe(false);
+	});
+
+	it('reads the stored content: snapshot and log together', async () => {
+		const g = await createBoardFixture(t.db, { name: 'Content Works' });
+		const boardId = g.boardIds[0];
+		const doc = new Y.Doc();
+		const points = doc.getMap('points');
+		const updates: Uint8Array[] = [];
+		doc.on('update', (u: Uint8Array) => updates.push(u));
+		points.set('a', 1);
+		points.set('b', 2);
+		for (const u of updates.splice(0)) await t.db.insertInto('board_update').values({ board_id: boardId, update: Buffer.from(u), user_id: null }).execute();
+		await compact(t.db, boardId);
+		points.set('c', 3);
+		points.delete('a');
+		for (const u of updates.splice(0)) await t.db.insertInto('board_update').values({ board_id: boardId, update: Buffer.from(u), user_id: null }).execute();
+
+		const stored = await boards.readContent(t.db, g.organisationId, boardId);
+		const back = new Y.Doc();
+		Y.applyUpdate(back, stored!);
+		expect(back.getMap('points').toJSON()).toEqual({ b: 2, c: 3 });
+		expect(await boards.readContent(t.db, other.organisationId, boardId)).toBeNull();
+	});
+});

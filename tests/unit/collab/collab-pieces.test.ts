@@ -1,0 +1,119 @@
+// The pure pieces of the live board server: the rate limiter, the configuration reader, the
+// update checks and the group-commit writer (with a stand-in store).
+import { describe, expect, it } from 'vitest';
+import * as Y from 'yjs';
+import { TokenBucket } from '../../../src/lib/server/collab/rate-limit';
+import { collabOptionsFromEnv, DEFAULT_COLLAB_OPTIONS } from '../../../src/lib/server/collab/config';
+import { decodeUpdateStrict, isCoveredBy, isEmptyUpdate } from '../../../src/lib/server/collab/update-check';
+import { UpdateWriter } from '../../../src/lib/server/collab/writer';
+import type { PendingUpdate } from '../../../src/lib/server/collab/persistence';
+
+describe('TokenBucket', () => {
+	it('allows a burst, then the sustained rate', () => {
+		let t = 0;
+		const b = new TokenBucket(10, 5, () => t);
+		for (let i = 0; i < 5; i++) expect(b.take()).toBe(true);
+		expect(b.take()).toBe(false);
+		t += 100; // 0.1 s at 10/s: one more token
+		expect(b.take()).toBe(true);
+		expect(b.take()).toBe(false);
+		t += 10_000; // refills to the burst, not beyond
+		for (let i = 0; i < 5; i++) expect(b.take()).toBe(true);
+		expect(b.take()).toBe(false);
+	});
+});
+
+describe('collabOptionsFromEnv', () => {
+	it('uses the defaults when nothing is set', () => {
+		expect(collabOptionsFromEnv({})).toEqual(DEFAULT_COLLAB_OPTIONS);
+	});
+	it('reads the variables', () => {
+		const o = collabOptionsFromEnv({ COLLAB_MAX_MESSAGE_BYTES: '65536', COLLAB_UNLOAD_GRACE_MS: '0', COLLAB_CLUSTER: 'off' });
+		expect(o.maxMessageBytes).toBe(65536);
+		expect(o.unloadGraceMs).toBe(0);
+		expect(o.cluster).toBe(false);
+	});
+	it('refuses nonsense with the variable named', () => {
+		expect(() => collabOptionsFromEnv({ COLLAB_COMPACT_EVERY: '0' })).toThrow(/COLLAB_COMPACT_EVERY must be a whole number ≥ 1/);
+		expect(() => collabOptionsFromEnv({ COLLAB_MESSAGES_PER_SECOND: 'fast' })).toThrow(/COLLAB_MESSAGES_PER_SECOND/);
+	});
+});
+
+describe('update checks', () => {
+	it('tells empty, new and already-known updates apart', () => {
+		const server = new Y.Doc();
+		const client = new Y.Doc();
+		const p = client.getMap('points');
+		p.set('a', 1);
+		p.set('b', 2);
+		const sv = Y.encodeStateVector(server);
+		const firstSync = Y.encodeStateAsUpdate(client, sv);
+		expect(isEmptyUpdate(decodeUpdateStrict(Y.encodeStateAsUpdate(new Y.Doc())))).toBe(true);
+		expect(isCoveredBy(server, decodeUpdateStrict(firstSync))).toBe(false);
+		Y.applyUpdate(server, firstSync);
+		expect(isCoveredBy(server, decodeUpdateStrict(firstSync))).toBe(true);
+
+		// A deletion the server has not seen is news, even though every struct is known.
+		p.delete('a');
+		const withDeletion = Y.encodeStateAsUpdate(client, Y.encodeStateVector(server));
+		const decoded = decodeUpdateStrict(withDeletion);
+		expect(decoded.structs).toHaveLength(0);
+		expect(isCoveredBy(server, decoded)).toBe(false);
+		Y.applyUpdate(server, withDeletion);
+		// The whole delete set again, as a reconnecting client sends it: nothing new.
+		expect(isCoveredBy(server, decodeUpdateStrict(Y.encodeStateAsUpdate(client, Y.encodeStateVector(server))))).toBe(true);
+	});
+
+	it('throws on truncated updates', () => {
+		const d = new Y.Doc();
+		d.getMap('points').set('a', 'some text');
+		const u = Y.encodeStateAsUpdate(d);
+		for (let n = 1; n < u.length; n++) expect(() => decodeUpdateStrict(u.slice(0, n)), `cut at ${n}`).toThrow();
+	});
+});
+
+describe('UpdateWriter', () => {
+	const item = (n: number): PendingUpdate => ({ boardId: 'b', organisationId: 'o', userId: 'u', sessionId: 's', update: new Uint8Array([n]) });
+
+	it('batches what arrives while a write is in flight, and answers each once stored', async () => {
+		const calls: number[][] = [];
+		let release!: () => void;
+		let first = true;
+		const writer = new UpdateWriter({ query: async () => ({}) as never }, 500, async (_db, items) => {
+			calls.push(items.map((i) => i.update[0]));
+			if (first) {
+				first = false;
+				await new Promise<void>((r) => (release = r));
+			}
+			return items.map((i) => (i.update[0] === 3 ? null : `seq${i.update[0]}`));
+		});
+		const answered: string[] = [];
+		const p1 = writer.enqueue(item(1)).then((s) => answered.push(`1:${s}`));
+		const p2 = writer.enqueue(item(2)).then((s) => answered.push(`2:${s}`));
+		const p3 = writer.enqueue(item(3)).then((s) => answered.push(`3:${s}`));
+		await new Promise((r) => setTimeout(r, 10));
+		expect(answered).toEqual([]); // nothing is answered before it is stored
+		release();
+		await Promise.all([p1, p2, p3]);
+		expect(calls).toEqual([[1], [2, 3]]);
+		expect(answered).toEqual(['1:seq1', '2:seq2', '3:null']);
+	});
+
+	it('keeps a batch in memory and retries while the store fails', async () => {
+		let attempts = 0;
+		const writer = new UpdateWriter({ query: async () => ({}) as never }, 500, async (_db, items) => {
+			attempts++;
+			if (attempts < 3) throw new Error('connection refused');
+			return items.map(() => 'seq9');
+		});
+		const errors = console.error;
+		console.error = () => {};
+		try {
+			await expect(writer.enqueue(item(9))).resolves.toBe('seq9');
+		} finally {
+			console.error = errors;
+		}
+		expect(attempts).toBe(3);
+		expect(writer.stats.failures).toBe(2);
+	});
+});
