@@ -20,8 +20,7 @@ import pg from 'pg';
 import * as Y from 'yjs';
 import { existsSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
-// @ts-expect-error: plain ESM helper without types
-import { startCluster } from '../server/setup/pg.mjs';
+import { startCluster as startClusterJs } from '../server/setup/pg.mjs';
 import { createDb } from '../src/lib/server/db/index';
 import { migrateToLatest } from '../src/lib/server/db/migrate';
 import { startApp, type RunningApp } from '../tests/helpers/app';
@@ -68,7 +67,7 @@ function rssMB(pid: number): number {
 async function serverStats(app: RunningApp) {
 	const before = app.output().length;
 	app.process.kill('SIGUSR2');
-	const line = await waitFor(() => /\[collab\] stats [^\n]*\n/.exec(app.output().slice(before))?.[0], 'server stats', 5000);
+	const line = (await waitFor(() => /\[collab\] stats [^\n]*\n/.exec(app.output().slice(before))?.[0], 'server stats', 5000))!;
 	return Object.fromEntries([...line.matchAll(/(\w+)=([\d.]+)/g)].map((m) => [m[1], Number(m[2])]));
 }
 
@@ -87,6 +86,11 @@ async function main() {
 	const started = now();
 	console.log(`machine load average at the start: ${loadavg().map((x) => x.toFixed(2)).join(' ')} (${cpus().length} CPUs)`);
 	console.log(`live board benchmark: ${BOARDS} boards × ${CLIENTS} clients, ${RATE} edits/s each, ${SECONDS} s measured after ${WARMUP} s warm-up, ${PROCESSES} server process(es), ${COMMIT === 'sync' ? 'synchronous commit (as in production)' : 'ASYNCHRONOUS commit (comparison only)'}`);
+	const startCluster = startClusterJs as unknown as (o: { dir: string; port: number; dbName: string; log: () => void }) => {
+		url: string;
+		psql(sql: string): string;
+		stop(): void;
+	};
 	const cluster = startCluster({ dir: '.data/pg-bench', port: Number(process.env.SPOTFACE_BENCH_PG_PORT ?? 54349), dbName: 'postgres', log: () => {} });
 	cluster.psql('alter system reset all');
 	cluster.psql('select pg_reload_conf()');
