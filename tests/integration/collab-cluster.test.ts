@@ -26,7 +26,7 @@ beforeAll(async () => {
 	t = await createTestDatabase();
 	// Catch-up re-reads every 700 ms here, so the healing test is quick; the relay test below
 	// finishes well before a first catch-up could matter (it asserts within 500 ms).
-	const env = { COLLAB_CATCH_UP_MS: '700' };
+	const env = { COLLAB_CATCH_UP_MS: '700', COLLAB_UNLOAD_GRACE_MS: '200' };
 	[one, two] = await Promise.all([startApp({ databaseUrl: t.url, env }), startApp({ databaseUrl: t.url, env })]);
 	f = await createBoardFixture(t.db);
 });
@@ -76,6 +76,20 @@ describe('two server processes, one database', () => {
 		await waitFor(() => !b.awareness.getStates().has(a.awareness.clientID), 'a’s presence gone on b');
 		// All of it came through the adapter: the log re-read never had anything to add.
 		expect(one.output() + two.output()).not.toMatch(/caught up/);
+	});
+
+	it('a process that opens a board late learns who is already there on the other', async () => {
+		const g = await createBoardFixture(t.db, { name: 'Presence Works' });
+		const a = provider(one.url, g.boardIds[0], await sessionCookie(one.url, g.people.engineer), { user: { name: 'E', color: '#123456' } });
+		await a.whenSynced();
+		a.awareness.setLocalStateField('selection', ['p-7']);
+		await new Promise((r) => setTimeout(r, 300));
+		// The board is not open on the second process until this client arrives.
+		expect(two.output()).not.toContain(`loaded board ${g.boardIds[0]}`);
+		const b = provider(two.url, g.boardIds[0], await sessionCookie(two.url, g.people.technician));
+		await b.whenSynced();
+		// Well before a's next renewal (every 15 s).
+		await waitFor(() => b.awareness.getStates().get(a.awareness.clientID)?.selection?.[0] === 'p-7', 'a’s presence on a fresh room', 3000);
 	});
 
 	it('heals a lost cross-process notification by re-reading the log', async () => {

@@ -2,6 +2,7 @@
 // the updates accepted since (board_update). Every process may append and compact; the database
 // is the one source of truth, a process's in-memory document is a cache of it.
 import type pg from 'pg';
+import { sql } from 'kysely';
 import * as Y from 'yjs';
 import type { DB } from '../db/index';
 import { PERMISSIONS } from '../auth/guard';
@@ -183,8 +184,11 @@ export async function compact(db: DB, boardId: string): Promise<CompactionResult
 	});
 }
 
-/** Log rows of a board not in `seen`, and the snapshot when it moved past `snapshotSeq`. */
-export async function readMissing(db: DB, boardId: string, seen: Set<string>, snapshotSeq: string) {
+/**
+ * Log rows of a board not in `seen` and older than `minAgeMs` (younger ones are most likely
+ * still on their way through the adapter), and the snapshot when it moved past `snapshotSeq`.
+ */
+export async function readMissing(db: DB, boardId: string, seen: Set<string>, snapshotSeq: string, minAgeMs = 1000) {
 	return db
 		.transaction()
 		.setIsolationLevel('repeatable read')
@@ -195,7 +199,12 @@ export async function readMissing(db: DB, boardId: string, seen: Set<string>, sn
 				BigInt(board.snapshot_seq) > BigInt(snapshotSeq)
 					? ((await trx.selectFrom('board').select(['snapshot']).where('id', '=', boardId).executeTakeFirst())?.snapshot ?? null)
 					: null;
-			const seqs = await trx.selectFrom('board_update').select('seq').where('board_id', '=', boardId).execute();
+			const seqs = await trx
+				.selectFrom('board_update')
+				.select('seq')
+				.where('board_id', '=', boardId)
+				.where('created_at', '<', sql<Date>`now() - make_interval(secs => ${minAgeMs / 1000})`)
+				.execute();
 			const unseen = seqs.map((r) => r.seq).filter((s) => !seen.has(s));
 			const rows = unseen.length
 				? await trx.selectFrom('board_update').select(['seq', 'update']).where('seq', 'in', unseen).orderBy('seq').execute()

@@ -37,6 +37,8 @@ import { BOARD_CHANNEL } from './notify';
 
 const RELAY_UPDATE = 'collab:update';
 const RELAY_AWARENESS = 'collab:awareness';
+/** A process that has just opened a board asks the others for the presence they hold. */
+const RELAY_PRESENCE_REQUEST = 'collab:presence?';
 const ORIGIN_STORAGE = 'storage';
 const ORIGIN_RELAY = 'relay';
 const ORIGIN_CATCH_UP = 'catch-up';
@@ -215,6 +217,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 				room.snapshotSeq = loaded.snapshotSeq;
 				for (const { seq, update } of room.early.splice(0)) applyRelayed(room, seq, update);
 				room.state = 'ready';
+				if (otherProcesses() > 0) io.serverSideEmit(RELAY_PRESENCE_REQUEST, boardId);
 				log.info(
 					`[collab] loaded board ${boardId}: ${loaded.seqs.length} log row(s) over the snapshot in ${(performance.now() - started).toFixed(1)} ms`
 				);
@@ -555,6 +558,13 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 			const update = Buffer.from(b64, 'base64');
 			if (room.state === 'loading') room.early.push({ seq, update });
 			else if (room.state === 'ready') applyRelayed(room, seq, update);
+		});
+		io.on(RELAY_PRESENCE_REQUEST, (boardId: unknown) => {
+			if (typeof boardId !== 'string') return;
+			const room = rooms.get(boardId);
+			if (!room || room.state !== 'ready') return;
+			const ids = [...room.members.values()].flatMap((m) => [...m.clientIds]).filter((id) => room.awareness.states.has(id));
+			if (ids.length) io.serverSideEmit(RELAY_AWARENESS, boardId, Buffer.from(encodeAwarenessUpdate(room.awareness, ids)).toString('base64'));
 		});
 		io.on(RELAY_AWARENESS, (boardId: unknown, b64: unknown) => {
 			if (typeof boardId !== 'string' || typeof b64 !== 'string') return;
