@@ -81,6 +81,34 @@ describe('restart', () => {
 	});
 });
 
+describe('restart under an open board', () => {
+	it('a connected client rides out the restart: its edits from before and during the outage are kept', async () => {
+		const first = await app({});
+		const port = first.port;
+		const p = provider(first.url, f.boardIds[0], await sessionCookie(first.url, f.people.engineer));
+		await p.whenSynced();
+		const before = addPoint(p.doc, { x: 1, y: 1, label: 'before' });
+		await waitFor(() => p.unsynced === 0, 'acknowledged');
+
+		const exited = new Promise((r) => first.process.once('exit', r));
+		first.process.kill('SIGKILL');
+		await exited;
+		apps.splice(apps.indexOf(first), 1);
+		await waitFor(() => p.status !== 'connected', 'the client notices');
+		const during = addPoint(p.doc, { x: 2, y: 2, label: 'during' });
+		expect(p.unsynced).toBe(1);
+
+		// Same address: the provider reconnects by itself.
+		const second = await startApp({ databaseUrl: t.url, port });
+		apps.push(second);
+		await waitFor(() => p.status === 'connected' && p.synced && p.unsynced === 0, 'reconnected and synced', 20_000);
+		const q = provider(second.url, f.boardIds[0], await sessionCookie(second.url, f.people.viewer));
+		await q.whenSynced();
+		expect(maps(q.doc).points.has(before)).toBe(true);
+		expect(maps(q.doc).points.has(during)).toBe(true);
+	});
+});
+
 describe('compaction', () => {
 	let server: RunningApp;
 	let cookie: string;
