@@ -31,7 +31,8 @@ import { loadBoardAccess, type BoardViewer } from './access';
 import { compact, loadInto, readMissing } from './persistence';
 import { UpdateWriter } from './writer';
 import { TokenBucket } from './rate-limit';
-import { decodeUpdateStrict, isCoveredBy, isEmptyUpdate } from './update-check';
+import { catchUpShadow, decodeUpdateStrict, isCoveredBy, isEmptyUpdate, reviewDecisionIn } from './update-check';
+import { can } from '../auth/guard';
 import type { CollabOptions } from './config';
 import { BOARD_CHANNEL } from './notify';
 
@@ -70,6 +71,8 @@ class BoardRoom {
 	compacting: Promise<void> | null = null;
 	/** Relayed updates that arrive while the room is loading; applied once it is ready. */
 	early: Array<{ seq: string; update: Uint8Array }> = [];
+	/** A copy of the document to try updates on before they are accepted (see reviewDecisionIn). */
+	shadow: Y.Doc | null = null;
 
 	constructor(readonly id: string) {
 		// The server is not a participant: no presence of its own.
@@ -228,6 +231,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 				room.state = 'gone';
 				room.unloaded = Promise.resolve();
 				rooms.delete(boardId);
+				room.shadow?.destroy();
 				room.doc.destroy();
 				throw e;
 			}
@@ -251,6 +255,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 				await runCompaction(room);
 			} finally {
 				room.awareness.destroy();
+				room.shadow?.destroy();
 				room.doc.destroy();
 				room.state = 'gone';
 				if (rooms.get(room.id) === room) rooms.delete(room.id);
@@ -428,6 +433,30 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		maybeCompact(room);
 	}
 
+	/** The review decision the update would write, trying it on the room's shadow copy. */
+	function tryOnShadow(room: BoardRoom, update: Uint8Array): string | null {
+		if (!room.shadow) {
+			room.shadow = new Y.Doc();
+			Y.applyUpdate(room.shadow, Y.encodeStateAsUpdate(room.doc));
+		} else {
+			catchUpShadow(room.shadow, room.doc);
+		}
+		let decision: string | null;
+		try {
+			decision = reviewDecisionIn(room.shadow, update);
+		} catch (e) {
+			room.shadow.destroy();
+			room.shadow = null;
+			throw new Malformed(`update does not apply: ${(e as Error).message}`);
+		}
+		if (decision) {
+			// The shadow now holds a change the room will never get: start it afresh next time.
+			room.shadow.destroy();
+			room.shadow = null;
+		}
+		return decision;
+	}
+
 	/**
 	 * Everything that can be wrong with a message is found here, synchronously, before anything
 	 * is stored or sent: a malformed message closes the socket before its next message is read.
@@ -448,6 +477,14 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 				}
 				// Nothing new (e.g. a read-only member's sync step 2 after a reconnect): nothing to store.
 				if (isEmptyUpdate(decoded) || isCoveredBy(room.doc, decoded)) return reply({ ok: true });
+				if (!member.readOnly && !can(member.viewer.role, 'review.decide')) {
+					const decision = tryOnShadow(room, message.update);
+					if (decision) {
+						const reason = `Only an engineer can mark a point ${decision}. Your change was not saved; propose the point and ask for a review.`;
+						log.warn(`[collab] refused an update from ${who(member.socket)}: sets a point ${decision}`);
+						return reply({ ok: false, refused: reason, readOnly: false });
+					}
+				}
 				return storeUpdate(room, member, message.update, reply);
 			}
 			case 'awareness': {
