@@ -69,7 +69,7 @@ export async function startApp(opts: { databaseUrl: string; env?: Record<string,
 		output: () => out,
 		stop: () =>
 			new Promise<void>((resolve) => {
-				if (child.exitCode !== null) return resolve();
+				if (child.exitCode !== null || child.signalCode !== null) return resolve();
 				child.once('exit', () => resolve());
 				child.kill('SIGTERM');
 				setTimeout(() => child.kill('SIGKILL'), 5000).unref();
