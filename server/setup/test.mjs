@@ -17,6 +17,7 @@ const cluster = startCluster({
 let code = 1;
 try {
 	runStep('Building the app', 'npx', ['vite', 'build', '--logLevel', 'error']);
+	runStep('Type-checking (svelte-check)', 'npx', ['svelte-check', '--tsconfig', './tsconfig.json', '--threshold', 'error', '--output', 'human']);
 	log('Running every test: unit, integration, browser');
 	const report = '.data/test-report.json';
 	rmSync(report, { force: true });
