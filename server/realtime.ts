@@ -10,7 +10,7 @@ import { attachCollab } from '../src/lib/server/collab/server';
 import { collabOptionsFromEnv, type CollabOptions } from '../src/lib/server/collab/config';
 import { createDb } from '../src/lib/server/db/index';
 import { createAuth } from '../src/lib/server/auth/lucia';
-import * as members from '../src/lib/server/db/members';
+import { viewerFromSession } from '../src/lib/server/auth/viewer';
 import type { Viewer } from '../src/lib/server/auth/lucia';
 
 export interface RealtimeOptions {
@@ -53,21 +53,12 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
 
 	io.use(async (socket, next) => {
 		try {
-			const sessionId = auth.readSessionCookie(socket.handshake.headers.cookie ?? '');
-			if (!sessionId) return next(new Error('unauthorised: sign in first'));
-			const { session, user } = await auth.validateSession(sessionId);
-			if (!session) return next(new Error('unauthorised: session expired'));
-			const member = await members.findForUser(handle.db, session.organisationId, user.id);
-			if (!member) return next(new Error('unauthorised: not a member'));
-			const viewer: Viewer = {
-				userId: user.id,
-				email: user.email,
-				name: user.name,
-				organisationId: session.organisationId,
-				organisationName: member.organisation_name,
-				role: member.role,
-				sessionId: session.id
-			};
+			const found = await viewerFromSession(auth, handle.db, auth.readSessionCookie(socket.handshake.headers.cookie ?? ''));
+			if (!found.ok) {
+				const why = { 'no-session': 'sign in first', expired: 'session expired', 'not-a-member': 'not a member' }[found.reason];
+				return next(new Error(`unauthorised: ${why}`));
+			}
+			const viewer: Viewer = found.viewer;
 			socket.data.viewer = viewer;
 			next();
 		} catch (err) {

@@ -1,6 +1,6 @@
 import type { Cookies } from '@sveltejs/kit';
 import { context } from '../context';
-import * as members from '../db/members';
+import { viewerFromSession } from './viewer';
 import type { Viewer } from './lucia';
 
 export async function startSession(cookies: Cookies, userId: string, organisationId: string) {
@@ -20,30 +20,19 @@ export async function endSession(cookies: Cookies, sessionId: string) {
 /** Validate the cookie, renew it when lucia says so, and load the member's role. */
 export async function loadViewer(cookies: Cookies): Promise<Viewer | null> {
 	const { auth, handle } = context();
-	const sessionId = cookies.get(auth.sessionCookieName);
-	if (!sessionId) return null;
-	const { session, user } = await auth.validateSession(sessionId);
-	if (!session) {
-		const blank = auth.createBlankSessionCookie();
-		cookies.set(blank.name, blank.value, { path: '/', ...blank.attributes, httpOnly: true });
+	const found = await viewerFromSession(auth, handle.db, cookies.get(auth.sessionCookieName));
+	if (!found.ok) {
+		if (found.reason === 'expired') {
+			const blank = auth.createBlankSessionCookie();
+			cookies.set(blank.name, blank.value, { path: '/', ...blank.attributes, httpOnly: true });
+		} else if (found.reason === 'not-a-member' && found.sessionId) {
+			await endSession(cookies, found.sessionId);
+		}
 		return null;
 	}
-	if (session.fresh) {
-		const c = auth.createSessionCookie(session.id);
+	if (found.fresh) {
+		const c = auth.createSessionCookie(found.viewer.sessionId);
 		cookies.set(c.name, c.value, { path: '/', ...c.attributes, httpOnly: true });
 	}
-	const member = await members.findForUser(handle.db, session.organisationId, user.id);
-	if (!member) {
-		await endSession(cookies, session.id);
-		return null;
-	}
-	return {
-		userId: user.id,
-		email: user.email,
-		name: user.name,
-		organisationId: session.organisationId,
-		organisationName: member.organisation_name,
-		role: member.role,
-		sessionId: session.id
-	};
+	return found.viewer;
 }
