@@ -309,6 +309,32 @@ describe('the live board in two browsers', () => {
 		expect(await engineer.page.getByRole('button', { name: 'Select', exact: true }).getAttribute('aria-pressed')).toBe('true');
 	});
 
+	it('offline on the tablet: both sides keep editing and the edits merge on reconnect', async () => {
+		const p = tech.page;
+		await waitLive(tech);
+		await tech.context.setOffline(true);
+		await expect.poll(() => p.getByTestId('connection').getAttribute('data-status'), { timeout: 30_000 }).not.toBe('connected');
+		await expect.poll(() => p.getByTestId('connection').textContent()).toContain('Offline · changes will be kept on this device');
+
+		// The technician places a point with no signal; it is kept on the device.
+		await p.getByRole('button', { name: 'Point', exact: true }).tap();
+		const box = (await p.getByTestId('board-canvas').boundingBox())!;
+		await p.touchscreen.tap(box.x + box.width * 0.6, box.y + box.height * 0.3);
+		await expect.poll(() => p.getByTestId('connection').textContent()).toMatch(/Offline · 1 change/);
+		await expect.poll(() => p.getByTestId('board-canvas').getAttribute('data-points')).toBe('3');
+
+		// Meanwhile the engineer, online, adds a point of their own.
+		await engineer.page.getByRole('button', { name: 'Point', exact: true }).click();
+		await clickCanvas(engineer, 0.75, 0.65);
+		await expect.poll(() => engineer.page.getByTestId('board-canvas').getAttribute('data-points')).toBe('3');
+
+		// Back in range: both edits are on both screens and stored.
+		await tech.context.setOffline(false);
+		await expect.poll(() => engineer.page.getByTestId('board-canvas').getAttribute('data-points'), { timeout: 30_000 }).toBe('4');
+		await expect.poll(() => p.getByTestId('board-canvas').getAttribute('data-points'), { timeout: 30_000 }).toBe('4');
+		await waitLive(tech);
+	});
+
 	it('the board stores what was done (the server log has the point)', async () => {
 		const rows = await t.db.selectFrom('board_update').select('seq').where('board_id', '=', boardId).execute();
 		const board = await t.db.selectFrom('board').select(['snapshot']).where('id', '=', boardId).executeTakeFirstOrThrow();
@@ -316,6 +342,7 @@ describe('the live board in two browsers', () => {
 	});
 
 	it('screenshots at tablet and laptop widths show no errors', async () => {
+		await tech.context.setOffline(false);
 		await tech.page.screenshot({ path: `${SHOTS}/board-820.png` });
 		await tech.page.goto(boardUrl.replace(/\/boards\/.*$/, ''));
 		await tech.page.screenshot({ path: `${SHOTS}/survey-820.png`, fullPage: true });
