@@ -335,6 +335,21 @@ describe('the live board in two browsers', () => {
 		await waitLive(tech);
 	});
 
+	it('a board opened before can be reopened with no signal', async () => {
+		const p = tech.page;
+		await p.goto(boardUrl);
+		await waitLive(tech);
+		await expect.poll(() => p.evaluate(() => Boolean(navigator.serviceWorker?.controller)), { timeout: 15_000 }).toBe(true);
+		await p.reload(); // with the service worker in control, the page, its data and photo are kept
+		await waitLive(tech);
+		await tech.context.setOffline(true);
+		await p.reload();
+		await expect.poll(() => p.getByTestId('board-canvas').getAttribute('data-points'), { timeout: 15_000 }).toBe('4');
+		await expect.poll(() => p.getByTestId('connection').textContent()).toContain('Offline');
+		await tech.context.setOffline(false);
+		await waitLive(tech);
+	});
+
 	it('the board stores what was done (the server log has the point)', async () => {
 		const rows = await t.db.selectFrom('board_update').select('seq').where('board_id', '=', boardId).execute();
 		const board = await t.db.selectFrom('board').select(['snapshot']).where('id', '=', boardId).executeTakeFirstOrThrow();
@@ -347,7 +362,8 @@ describe('the live board in two browsers', () => {
 		await tech.page.goto(boardUrl.replace(/\/boards\/.*$/, ''));
 		await tech.page.screenshot({ path: `${SHOTS}/survey-820.png`, fullPage: true });
 		await engineer.page.screenshot({ path: `${SHOTS}/board-1280.png` });
-		const errors = [...engineer.errors, ...tech.errors].filter((e) => !/favicon/.test(e));
+		// The offline tests make the browser log its failed reconnection attempts; nothing else may error.
+		const errors = [...engineer.errors, ...tech.errors].filter((e) => !/favicon|ERR_INTERNET_DISCONNECTED/.test(e));
 		expect(errors).toEqual([]);
 	});
 });
