@@ -48,6 +48,28 @@ describe('surveys', () => {
 		);
 	});
 
+	it('an edited plan is saved whole or not at all', async () => {
+		const s = await surveys.create(t.db, f.organisationId, null, { siteId: f.siteId, title: 'Plan before', machineIds: [f.machineIds[0]] });
+		// A machine of another organisation is refused, and the new title is not kept either.
+		await expect(
+			surveys.replacePlan(t.db, f.organisationId, s!.id, { title: 'Plan after', machineIds: [other.machineIds[0]], assignees: [] })
+		).rejects.toThrow(surveys.SurveyRuleError);
+		expect((await surveys.get(t.db, f.organisationId, s!.id))!.title).toBe('Plan before');
+		expect((await surveys.listMachines(t.db, f.organisationId, s!.id)).map((m) => m.id)).toEqual([f.machineIds[0]]);
+
+		expect(
+			await surveys.replacePlan(t.db, f.organisationId, s!.id, {
+				title: 'Plan after',
+				machineIds: f.machineIds,
+				assignees: [{ userId: f.people.technician.userId, role: 'technician' }]
+			})
+		).toBe(true);
+		expect((await surveys.get(t.db, f.organisationId, s!.id))!.title).toBe('Plan after');
+		expect((await surveys.listAssignees(t.db, f.organisationId, s!.id)).map((a) => a.role)).toEqual(['technician']);
+		// Another organisation's survey is not found.
+		expect(await surveys.replacePlan(t.db, other.organisationId, s!.id, { title: 'x', machineIds: [], assignees: [] })).toBe(false);
+	});
+
 	it('moves through the statuses in order only', async () => {
 		const s = (await surveys.create(t.db, f.organisationId, null, { siteId: f.siteId, title: 'Order' }))!;
 		await expect(surveys.setStatus(t.db, f.organisationId, s.id, 'approved', null)).rejects.toThrow(/cannot move to approved/);

@@ -231,6 +231,37 @@ async function writeAssignees(trx: DB, organisationId: string, surveyId: string,
 	}
 }
 
+/**
+ * Saves an edited plan (details, machines, people) in one transaction, so a refused machine
+ * list leaves the details as they were. False when the survey is not found.
+ */
+export async function replacePlan(
+	db: DB,
+	organisationId: string,
+	surveyId: string,
+	input: Pick<SurveyInput, 'title' | 'plannedDate' | 'notes'> & { machineIds: string[]; assignees: Array<{ userId: string; role: SurveyAssigneeRole }> }
+) {
+	return db.transaction().execute(async (trx) => {
+		const s = await trx
+			.selectFrom('survey')
+			.select(['site_id'])
+			.where('organisation_id', '=', organisationId)
+			.where('id', '=', surveyId)
+			.forUpdate()
+			.executeTakeFirst();
+		if (!s) return false;
+		await trx
+			.updateTable('survey')
+			.set({ title: input.title, planned_date: input.plannedDate ?? null, notes: input.notes ?? '', updated_at: new Date() })
+			.where('organisation_id', '=', organisationId)
+			.where('id', '=', surveyId)
+			.execute();
+		await writeMachines(trx, organisationId, surveyId, s.site_id, input.machineIds);
+		await writeAssignees(trx, organisationId, surveyId, input.assignees);
+		return true;
+	});
+}
+
 /** Replaces the machines to walk (all of the survey's site). False when the survey is not found. */
 export async function setMachines(db: DB, organisationId: string, surveyId: string, machineIds: string[]) {
 	return db.transaction().execute(async (trx) => {

@@ -195,9 +195,13 @@ export const actions: Actions = {
 			...data.technicianIds.map((userId) => ({ userId, role: 'technician' as const }))
 		];
 		try {
-			await surveys.update(db, viewer.organisationId, survey.id, { title: data.title, plannedDate: data.plannedDate, notes: data.notes });
-			await surveys.setMachines(db, viewer.organisationId, survey.id, data.machineIds);
-			await surveys.setAssignees(db, viewer.organisationId, survey.id, assignees);
+			await surveys.replacePlan(db, viewer.organisationId, survey.id, {
+				title: data.title,
+				plannedDate: data.plannedDate,
+				notes: data.notes,
+				machineIds: data.machineIds,
+				assignees
+			});
 		} catch (e) {
 			if (e instanceof surveys.SurveyRuleError) return planFail(form.values, { machineIds: e.message });
 			throw e;
