@@ -25,6 +25,13 @@ export function ensurePostgresInstalled(log = console.log) {
 		);
 	}
 	log('Installing PostgreSQL from Debian packages (apt-get install postgresql)…');
+	// Spotface runs its own cluster under .data/; ask the package not to create and start the
+	// system-wide "main" cluster on port 5432 as well.
+	const conf = '/etc/postgresql-common/createcluster.conf';
+	if (!existsSync(conf)) {
+		mkdirSync('/etc/postgresql-common', { recursive: true });
+		writeFileSync(conf, 'create_main_cluster = false\n');
+	}
 	run('apt-get', ['update', '-qq']);
 	run('apt-get', ['install', '-y', '-qq', 'postgresql'], { DEBIAN_FRONTEND: 'noninteractive' });
 	bin = findPgBin();
