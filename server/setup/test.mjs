@@ -4,7 +4,14 @@ import { spawnSync } from 'node:child_process';
 import { existsSync, readFileSync, rmSync } from 'node:fs';
 import { ensureChromium, ensureDependencies } from './deps.mjs';
 import { startCluster } from './pg.mjs';
-import { log, runStep } from './common.mjs';
+import { log } from './common.mjs';
+
+/** Like runStep, but throws so the finally block below still stops the test cluster. */
+function step(label, cmd, args) {
+	log(label);
+	const r = spawnSync(cmd, args, { stdio: 'inherit' });
+	if (r.status !== 0) throw new Error(`${label} failed (exit ${r.status})`);
+}
 
 ensureDependencies(log);
 ensureChromium(log);
@@ -16,8 +23,8 @@ const cluster = startCluster({
 });
 let code = 1;
 try {
-	runStep('Building the app', 'npx', ['vite', 'build', '--logLevel', 'error']);
-	runStep('Type-checking (svelte-check)', 'npx', ['svelte-check', '--tsconfig', './tsconfig.json', '--threshold', 'error', '--output', 'human']);
+	step('Building the app', 'npx', ['vite', 'build', '--logLevel', 'error']);
+	step('Type-checking (svelte-check)', 'npx', ['svelte-check', '--tsconfig', './tsconfig.json', '--threshold', 'error', '--output', 'human']);
 	log('Running every test: unit, integration, browser');
 	const report = '.data/test-report.json';
 	rmSync(report, { force: true });
@@ -32,6 +39,9 @@ try {
 		if (!j.numTotalTests) code = code || 1; // a run that executed no test is a failure
 		console.log(`\n${j.numPassedTests} passed, ${j.numFailedTests} failed`);
 	}
+} catch (e) {
+	console.error(`\n${e.message}`);
+	code = 1;
 } finally {
 	cluster.stop();
 }
