@@ -67,10 +67,6 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
 		}
 	});
 
-	io.on('connection', (socket) => {
-		socket.emit('hello', { name: (socket.data.viewer as Viewer).name, role: (socket.data.viewer as Viewer).role });
-	});
-
 	const collab = attachCollab({ io, db: handle.db, pool: handle.pool, options: collabOptions });
 	// `kill -USR2 <pid>` prints what the live board holds in this process: rooms, sockets, storage
 	// timings, event-loop delay and memory (after a full collection when run with --expose-gc).

@@ -52,7 +52,7 @@ export async function seedSurvey(db: DB, organisationId: string) {
 		]
 	});
 	if (!survey) return null;
-	await surveys.setStatus(db, organisationId, survey.id, 'walking', engineer?.id ?? null).catch(() => {});
+	await surveys.setStatus(db, organisationId, survey.id, 'walking', engineer?.id ?? null);
 
 	const photo = await db
 		.selectFrom('media')
