@@ -11,7 +11,7 @@ export const TEMPLATE_DB = 'spotface_template';
 
 export default async function setup() {
 	if (!process.env.SPOTFACE_TEST_PG_URL) {
-		const c = startCluster({ dir: '.data/pg-test', port: 54339, dbName: 'spotface_test', log: () => {} });
+		const c = startCluster({ dir: '.data/pg-test', port: Number(process.env.SPOTFACE_TEST_PG_PORT ?? 54339), dbName: 'spotface_test', log: () => {} });
 		process.env.SPOTFACE_TEST_PG_URL = c.url;
 	}
 	const adminUrl = withDb(process.env.SPOTFACE_TEST_PG_URL!, 'postgres');
