@@ -1,9 +1,13 @@
 // Bridges one board's Y.Doc, its undo manager and its sync provider to Svelte: a fresh,
 // validated snapshot after every change, the connection state, and who else is here.
-import type * as Y from 'yjs';
+import * as Y from 'yjs';
 import { Awareness } from 'y-protocols/awareness';
 import type { Vec2 } from '../trade';
-import { createUndoManager, readBoard, type BoardSnapshot } from './model';
+import { addPoint, addZone, createUndoManager, LOCAL_ORIGIN, maps, readBoard, setScale, type BoardSnapshot } from './model';
+import { pointPatchSchema, zonePatchSchema, type ScaleData } from '../schemas/board';
+import type { SetAsideEntry } from './sync/set-aside';
+import type { OverwriteNotice } from './sync/overwrites';
+import { addSetAside, readSetAside, writeSetAside } from './sync/set-aside-store';
 
 /* eslint-disable @typescript-eslint/no-explicit-any */
 
@@ -11,13 +15,16 @@ export type ConnectionStatus = 'local' | 'connecting' | 'connected' | 'disconnec
 
 /** What the board needs from the sync provider (src/lib/board/sync/provider.ts). */
 export interface BoardSyncProvider {
+	readonly boardId?: string;
 	readonly awareness: Awareness;
 	readonly status: 'connecting' | 'connected' | 'disconnected' | 'refused';
 	readonly synced: boolean;
 	readonly unsynced: number;
 	readonly readOnly: boolean;
 	readonly readOnlyReason?: string | null;
-	on(event: 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc', cb: (...args: any[]) => void): () => void;
+	on(event: 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc' | 'set-aside' | 'overwritten', cb: (...args: any[]) => void): () => void;
+	/** Deletes offline copies kept from earlier refusals (once the tray is empty). */
+	forgetEarlierCopies?(): Promise<void>;
 	connect(): void;
 	disconnect(): void;
 	destroy(): Promise<void>;
@@ -78,7 +85,12 @@ export interface Refusal {
 	reason: string;
 	kind: 'update' | 'join' | 'session';
 	at: number;
+	/** Refused on this device by the board policy, before it was sent. */
+	local?: boolean;
 }
+
+/** Fields of a point that a new proposal takes over from work that was not accepted. */
+const PROPOSAL_FIELDS = Object.keys(pointPatchSchema.shape).filter((k) => k !== 'status' && k !== 'label' && k !== 'distanceLine');
 
 export class LiveBoard {
 	readonly awareness: Awareness;
@@ -91,6 +103,9 @@ export class LiveBoard {
 	#sync = $state<SyncState>({ status: 'local', synced: false, unsynced: 0, readOnly: false, reason: null });
 	#refusal = $state.raw<Refusal | null>(null);
 	#peers = $state.raw<Peer[]>([]);
+	#setAside = $state.raw<SetAsideEntry[]>([]);
+	#overwrites = $state.raw<OverwriteNotice[]>([]);
+	#boardId: string | null;
 	#cleanup: Array<() => void> = [];
 	#unbindDoc: (() => void) | null = null;
 	#cursorTimer: ReturnType<typeof setTimeout> | null = null;
@@ -98,6 +113,8 @@ export class LiveBoard {
 
 	constructor(doc: Y.Doc, provider: BoardSyncProvider | null, user: BoardUser) {
 		this.#provider = provider;
+		this.#boardId = provider?.boardId ?? null;
+		if (this.#boardId) this.#setAside = readSetAside(this.#boardId);
 		this.awareness = provider?.awareness ?? new Awareness(doc);
 		this.awareness.setLocalState({ user, cursor: null, selection: [] });
 		this.#bind(doc);
@@ -127,9 +144,20 @@ export class LiveBoard {
 			for (const ev of ['status', 'synced', 'unsynced', 'readonly'] as const) this.#cleanup.push(provider.on(ev, () => read()));
 			this.#cleanup.push(
 				provider.on('refused', (reason, detail) => {
-					const kind = (detail as { kind?: Refusal['kind'] } | undefined)?.kind ?? 'join';
-					this.#refusal = { reason: typeof reason === 'string' ? reason : 'refused by the server', kind, at: Date.now() };
+					const d = detail as { kind?: Refusal['kind']; local?: boolean } | undefined;
+					this.#refusal = { reason: typeof reason === 'string' ? reason : 'refused by the server', kind: d?.kind ?? 'join', at: Date.now(), local: !!d?.local };
 					read();
+				})
+			);
+			this.#cleanup.push(
+				provider.on('set-aside', (entries: SetAsideEntry[]) => {
+					if (this.#boardId) this.#setAside = addSetAside(this.#boardId, entries);
+					else this.#setAside = [...this.#setAside, ...entries];
+				})
+			);
+			this.#cleanup.push(
+				provider.on('overwritten', (n: OverwriteNotice) => {
+					this.#overwrites = [...this.#overwrites.filter((o) => !(o.itemId === n.itemId && o.field === n.field)), n];
 				})
 			);
 			// After a refused change the provider continues on a fresh copy of the server's state.
@@ -192,6 +220,83 @@ export class LiveBoard {
 
 	dismissRefusal() {
 		this.#refusal = null;
+	}
+
+	/** Work the server (or the board policy here) did not accept, kept on this device. */
+	get setAside(): SetAsideEntry[] {
+		return this.#setAside;
+	}
+
+	/** Values set offline that someone else's concurrent edit replaced. */
+	get overwrites(): OverwriteNotice[] {
+		return this.#overwrites;
+	}
+
+	#keepSetAside(list: SetAsideEntry[]) {
+		this.#setAside = list;
+		if (this.#boardId) writeSetAside(this.#boardId, list);
+		if (list.length === 0) void this.#provider?.forgetEarlierCopies?.();
+	}
+
+	discardSetAside(id: string) {
+		this.#keepSetAside(this.#setAside.filter((e) => e.id !== id));
+	}
+
+	/**
+	 * Turns work that was not accepted into a new proposal: a new point (or zone, or scale) with
+	 * what the person had entered, beside the original. Returns the new item's id, or null when
+	 * nothing could be proposed (e.g. a deletion); the entry stays in the tray then.
+	 */
+	proposeFromSetAside(id: string, createdBy = ''): string | null {
+		const entry = this.#setAside.find((e) => e.id === id);
+		if (!entry || entry.action === 'deleted') return null;
+		const doc = this.#doc;
+		let created: string | null = null;
+		if (entry.kind === 'point') {
+			const patch: Record<string, unknown> = {};
+			for (const k of PROPOSAL_FIELDS) {
+				const r = (pointPatchSchema.shape as Record<string, { safeParse(v: unknown): { success: boolean; data?: unknown } }>)[k].safeParse(entry.item[k]);
+				if (entry.item[k] !== undefined && r.success) patch[k] = r.data;
+			}
+			const x = Number(entry.item.x);
+			const y = Number(entry.item.y);
+			if (!Number.isFinite(x) || !Number.isFinite(y)) return null;
+			created = addPoint(doc, { ...patch, x: x + 24, y: y + 24, createdBy });
+		} else if (entry.kind === 'zone') {
+			const polygon = entry.item.polygon as Vec2[] | undefined;
+			if (!Array.isArray(polygon)) return null;
+			const fields = zonePatchSchema.safeParse({ label: entry.item.label, kind: entry.item.kind });
+			created = addZone(doc, { ...(fields.success ? fields.data : {}), polygon });
+		} else if (entry.kind === 'scale') {
+			setScale(doc, entry.item as unknown as ScaleData);
+			created = 'scale';
+		} else {
+			return null;
+		}
+		// The board policy may have refused the new item too; then it is in the tray again.
+		if (doc !== this.#doc) return null;
+		this.discardSetAside(id);
+		return created;
+	}
+
+	/** Puts back the value the person had set, over the one that replaced it. */
+	restoreOverwritten(id: string): boolean {
+		const n = this.#overwrites.find((o) => o.id === id);
+		if (!n) return false;
+		const m = maps(this.#doc);
+		const root = n.kind === 'point' ? m.points : n.kind === 'route' ? m.routes : m.zones;
+		const item = root.get(n.itemId);
+		if (!(item instanceof Y.Map)) return false;
+		this.#doc.transact(() => {
+			if (n.mine === undefined) item.delete(n.field);
+			else item.set(n.field, n.mine);
+		}, LOCAL_ORIGIN);
+		this.dismissOverwrite(id);
+		return true;
+	}
+
+	dismissOverwrite(id: string) {
+		this.#overwrites = this.#overwrites.filter((o) => o.id !== id);
 	}
 
 	/** Shares the pointer position (image coordinates), at most every 40 ms. */

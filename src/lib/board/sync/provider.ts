@@ -16,13 +16,19 @@
 // has stored them all. After a page reload the count restarts at 0 even if the offline copy
 // holds changes the server has not seen yet; they are sent with the first sync all the same.
 //
-// Refusal and rollback: when the server refuses an update (viewer role, approved board, ended
-// session) the provider does not try to undo the change in place: a Yjs document cannot forget
-// what it has integrated, and an undo would be a new change the server refuses again. Instead it
-// loads the server's state into a fresh Y.Doc, swaps it in (and in the offline store), then
-// emits 'doc' (newDoc) and 'refused' (reason, { kind: 'update', doc: newDoc }). The UI must
-// re-bind to `provider.doc` on 'doc' and tell the user the reason. The document passed to the
-// constructor is left as it was (not destroyed), so nothing bound to it breaks meanwhile.
+// Refusal and rollback: when the server refuses an update (the board policy, an approved board,
+// an ended session) the provider does not try to undo the change in place: a Yjs document cannot
+// forget what it has integrated, and an undo would be a new change the server refuses again.
+// Instead it loads the server's state into a fresh Y.Doc and swaps it in. Nothing the person did
+// is thrown away: their copy is compared with the server's item by item (set-aside.ts); each
+// difference the board policy (`check`) accepts is written again into the fresh copy and sent,
+// and the rest is emitted as 'set-aside' (entries with the reason) for the board's "not
+// accepted" tray. Then it emits 'doc' (newDoc) and 'refused' (reason, { kind: 'update', doc }).
+// The UI must re-bind to `provider.doc` on 'doc'. The old document is left as it was (not
+// destroyed), and so is its offline copy: the fresh document gets an offline copy of its own.
+//
+// Overwrites: a value the person set while offline that loses to someone else's concurrent edit
+// is reported as 'overwritten' (OverwriteNotice: both values and who set the other one).
 // A refused join or handshake emits 'refused' (reason, { kind: 'join' | 'session' }) and sets
 // status 'refused'; the provider then stays disconnected.
 //
@@ -46,14 +52,22 @@ import {
 	type JoinReply,
 	type MessageAck
 } from './protocol';
+import { labelFor, reapply, unacceptedWork, type ChangeCheck, type SetAsideEntry } from './set-aside';
+import { OverwriteWatch, type OverwriteNotice } from './overwrites';
 
 export type ProviderStatus = 'connecting' | 'connected' | 'disconnected' | 'refused';
-export type ProviderEvent = 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc';
+export type ProviderEvent = 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc' | 'set-aside' | 'overwritten';
+export type { SetAsideEntry, OverwriteNotice, ChangeCheck };
+
+/** Origin of differences written again after a refusal: sent to the server, not undoable. */
+export const REAPPLY_ORIGIN: unique symbol = Symbol('spotface.board.reapply');
 
 export interface RefusalDetail {
 	/** 'update': a change was refused and rolled back; 'join': the board cannot be opened; 'session': sign in again. */
 	kind: 'update' | 'join' | 'session';
 	doc?: Y.Doc;
+	/** The board policy on this device refused it before it was sent. */
+	local?: boolean;
 }
 
 export interface BoardProviderOptions {
@@ -72,12 +86,43 @@ export interface BoardProviderOptions {
 	path?: string;
 	/** Longest pause between presence messages while the pointer moves (default 50 ms). */
 	awarenessThrottleMs?: number;
+	/**
+	 * The board policy for the signed-in person: after a refusal, each difference it accepts is
+	 * written again; without it every difference is set aside.
+	 */
+	check?: ChangeCheck;
 }
 
 type Listener = (...a: any[]) => void;
 
 const isBrowser = typeof window !== 'undefined' && typeof document !== 'undefined';
 const OFFLINE_PREFIX = 'spotface-board-';
+const GENERATION_PREFIX = 'spotface-board-generation-';
+
+/** Which offline copy of a board is current: each refusal starts a new one and keeps the old. */
+function offlineGeneration(boardId: string): number {
+	try {
+		return Number(globalThis.localStorage?.getItem(GENERATION_PREFIX + boardId) ?? 0) || 0;
+	} catch {
+		return 0;
+	}
+}
+function setOfflineGeneration(boardId: string, n: number) {
+	try {
+		globalThis.localStorage?.setItem(GENERATION_PREFIX + boardId, String(n));
+	} catch {
+		/* private mode: the next load starts from generation 0 and the server's state */
+	}
+}
+function offlineName(boardId: string, generation: number) {
+	return generation ? `${OFFLINE_PREFIX}${boardId}~${generation}` : OFFLINE_PREFIX + boardId;
+}
+function deleteDatabase(name: string) {
+	return new Promise<void>((resolve) => {
+		const r = indexedDB.deleteDatabase(name);
+		r.onsuccess = r.onerror = r.onblocked = () => resolve();
+	});
+}
 
 interface OfflineStore {
 	whenSynced: Promise<unknown>;
@@ -114,6 +159,18 @@ export class BoardProvider {
 	#awarenessTimer: ReturnType<typeof setTimeout> | null = null;
 	#awarenessLastSent = 0;
 	#reconnectTimer: ReturnType<typeof setTimeout> | null = null;
+	/** The person's copy at the last refusal, compared with the server's once that arrives. */
+	#refusedDoc: Y.Doc | null = null;
+	/** Refusals since the server last accepted something: a second one sets everything aside. */
+	#refusalStreak = 0;
+	#watch: OverwriteWatch;
+	/**
+	 * With a `check`: the document as the policy last accepted it (the server's changes, the
+	 * offline copy and the person's accepted changes). A local change the policy refuses is not
+	 * sent; the board goes back to this state and the change goes to the tray.
+	 */
+	#accepted: Y.Doc | null = null;
+	#checkingLocal = false;
 
 	constructor(opts: BoardProviderOptions) {
 		this.#opts = opts;
@@ -122,6 +179,11 @@ export class BoardProvider {
 		this.awareness = new Awareness(opts.doc);
 		if (opts.user) this.awareness.setLocalStateField('user', opts.user);
 		this.#doc.on('update', this.#onDocUpdate);
+		this.#watch = this.#newWatch(this.#doc);
+		if (opts.check) {
+			this.#accepted = new Y.Doc();
+			Y.applyUpdate(this.#accepted, Y.encodeStateAsUpdate(this.#doc));
+		}
 		this.awareness.on('update', this.#onAwarenessUpdate);
 		const wantOffline = opts.offline ?? (isBrowser && typeof indexedDB !== 'undefined');
 		if (wantOffline && typeof indexedDB !== 'undefined') this.#offlineReady = this.#openOffline(this.#doc);
@@ -193,6 +255,7 @@ export class BoardProvider {
 		this.#socket = null;
 		if (this.#awarenessTimer) clearTimeout(this.#awarenessTimer);
 		this.#doc.off('update', this.#onDocUpdate);
+		this.#watch.destroy();
 		this.awareness.off('update', this.#onAwarenessUpdate);
 		this.awareness.destroy();
 		await this.#offlineReady.catch(() => {});
@@ -205,17 +268,40 @@ export class BoardProvider {
 	static async clearOfflineCopies(): Promise<void> {
 		if (typeof indexedDB === 'undefined' || typeof indexedDB.databases !== 'function') return;
 		const dbs = await indexedDB.databases();
-		await Promise.all(
-			dbs
-				.filter((d) => d.name?.startsWith(OFFLINE_PREFIX))
-				.map(
-					(d) =>
-						new Promise<void>((resolve) => {
-							const r = indexedDB.deleteDatabase(d.name!);
-							r.onsuccess = r.onerror = r.onblocked = () => resolve();
-						})
-				)
+		await Promise.all(dbs.filter((d) => d.name?.startsWith(OFFLINE_PREFIX)).map((d) => deleteDatabase(d.name!)));
+	}
+
+	/**
+	 * Deletes the offline copies a board's earlier refusals left behind (kept until the person has
+	 * dealt with the "not accepted" tray). The current copy stays.
+	 */
+	static async forgetEarlierCopies(boardId: string): Promise<void> {
+		if (typeof indexedDB === 'undefined') return;
+		const current = offlineGeneration(boardId);
+		const names = [];
+		for (let g = 0; g < current; g++) names.push(offlineName(boardId, g));
+		await Promise.all(names.map(deleteDatabase));
+	}
+
+	/** This board's offline copies from earlier refusals, once the tray is empty. */
+	forgetEarlierCopies(): Promise<void> {
+		return BoardProvider.forgetEarlierCopies(this.boardId);
+	}
+
+	#newWatch(doc: Y.Doc): OverwriteWatch {
+		const watch = new OverwriteWatch(
+			doc,
+			(origin) => origin === this,
+			(n) => this.#emit('overwritten', n)
 		);
+		watch.recording = !(this.#joined && this.synced);
+		return watch;
+	}
+
+	/** Offline edits are watched for overwrites until the server has all of them. */
+	#updateWatch() {
+		this.#watch.recording = !(this.#joined && this.synced);
+		if (this.#joined && this.synced && this.unsynced === 0) this.#watch.settle();
 	}
 
 	// ---- internals ------------------------------------------------------------------------
@@ -299,6 +385,7 @@ export class BoardProvider {
 			this.synced = false;
 			this.#emit('synced', false);
 		}
+		this.#updateWatch();
 		// Nobody else is known to be here while we are not connected.
 		const others = [...this.awareness.getStates().keys()].filter((id) => id !== this.awareness.clientID);
 		if (others.length) removeAwarenessStates(this.awareness, others, this);
@@ -327,6 +414,7 @@ export class BoardProvider {
 		const n = Math.max(0, this.#localSeq - this.#ackedSeq);
 		if (n === this.unsynced) return;
 		this.unsynced = n;
+		this.#updateWatch();
 		this.#emit('unsynced', n);
 	}
 
@@ -343,6 +431,7 @@ export class BoardProvider {
 		this.#send(message, (ack) => {
 			if (generation !== this.#generation || this.#destroyed) return;
 			if (ack?.ok) {
+				this.#refusalStreak = 0;
 				this.#ackedSeq = Math.max(this.#ackedSeq, upTo);
 				this.#setUnsynced();
 			} else if (ack && 'refused' in ack) {
@@ -352,6 +441,17 @@ export class BoardProvider {
 	}
 
 	#onDocUpdate = (update: Uint8Array, origin: unknown) => {
+		if (this.#accepted) {
+			// The person's own change is tried against the board policy before it is sent, so they
+			// learn at once; everything else (the server, the offline copy, replays) is taken as is.
+			const own = origin !== this && origin !== this.#offline && origin !== REAPPLY_ORIGIN && !this.#checkingLocal;
+			const why = own ? this.#opts.check!(this.#accepted, update) : null;
+			if (why) {
+				this.#refuseLocally(why);
+				return;
+			}
+			Y.applyUpdate(this.#accepted, update, this);
+		}
 		if (origin === this) return; // from the server
 		// What the offline copy loads may or may not be on the server already: it is sent (the
 		// server drops what it has) but not counted as an unsynced change.
@@ -413,28 +513,100 @@ export class BoardProvider {
 	}
 
 	#onSynced() {
-		if (this.#pendingRefusal !== null) {
-			const reason = this.#pendingRefusal;
-			this.#pendingRefusal = null;
-			this.#emit('doc', this.#doc);
-			this.#emit('refused', reason, { kind: 'update', doc: this.#doc } satisfies RefusalDetail);
-		}
 		if (!this.synced) {
 			this.synced = true;
 			this.#emit('synced', true);
 		}
+		this.#updateWatch();
+		if (this.#pendingRefusal !== null) {
+			const reason = this.#pendingRefusal;
+			this.#pendingRefusal = null;
+			const old = this.#refusedDoc;
+			this.#refusedDoc = null;
+			if (old) this.#setAside(old, reason);
+			this.#emit('doc', this.#doc);
+			this.#emit('refused', reason, { kind: 'update', doc: this.#doc } satisfies RefusalDetail);
+		}
 		for (const r of this.#syncWaiters.splice(0)) r();
+	}
+
+	/**
+	 * Compares the person's copy with the server's (now in this.#doc): what the policy accepts is
+	 * written again and sent; the rest goes to the "not accepted" tray with the reason.
+	 */
+	#setAside(old: Y.Doc, serverReason: string, localCheck?: ChangeCheck) {
+		let entries: SetAsideEntry[] = [];
+		try {
+			const differences = unacceptedWork(old, this.#doc);
+			// A change the policy passed but the server refused again is not tried a third time.
+			const check = localCheck ?? (this.#refusalStreak > 1 || this.readOnly ? null : (this.#opts.check ?? null));
+			const { refused } = reapply(this.#doc, differences, check, serverReason, REAPPLY_ORIGIN);
+			const at = Date.now();
+			entries = refused.map(({ difference, reason }, i) => ({
+				...difference,
+				id: `sa-${at.toString(36)}-${i}-${Math.random().toString(36).slice(2, 8)}`,
+				label: labelFor(difference, old),
+				reason,
+				at
+			}));
+		} catch (e) {
+			console.error('[board sync] could not compare the refused work with the board:', e);
+		}
+		if (entries.length) this.#emit('set-aside', entries);
+	}
+
+	/**
+	 * The board policy refused the person's change before it was sent: the board goes back to the
+	 * last accepted state (nothing to ask the server), and the change goes to the tray.
+	 */
+	#refuseLocally(reason: string) {
+		const old = this.#doc;
+		old.off('update', this.#onDocUpdate);
+		const fresh = new Y.Doc();
+		this.#checkingLocal = true;
+		try {
+			Y.applyUpdate(fresh, Y.encodeStateAsUpdate(this.#accepted!));
+		} finally {
+			this.#checkingLocal = false;
+		}
+		fresh.on('update', this.#onDocUpdate);
+		this.#watch.destroy();
+		this.#watch = this.#newWatch(fresh);
+		this.#doc = fresh;
+		// The offline copy has the refused change too: the fresh document gets its own copy.
+		if (this.#offline) {
+			const store = this.#offline;
+			this.#offline = null;
+			setOfflineGeneration(this.boardId, offlineGeneration(this.boardId) + 1);
+			this.#offlineReady = store
+				.destroy()
+				.catch(() => {})
+				.then(() => this.#openOffline(fresh)); // y-indexeddb stores the fresh document's state first
+		}
+		this.#setAside(old, reason, this.#opts.check!);
+		this.#emit('doc', fresh);
+		this.#emit('refused', reason, { kind: 'update', doc: fresh, local: true } satisfies RefusalDetail);
 	}
 
 	/** The server refused a change: continue on a fresh copy of the server's state. */
 	#rollBack(reason: string, readOnly: boolean) {
 		this.#setReadOnly(readOnly || this.readOnly, readOnly ? reason : this.readOnlyReason);
 		this.#generation++;
+		this.#refusalStreak++;
 		const old = this.#doc;
 		old.off('update', this.#onDocUpdate);
+		// A second refusal before the first was dealt with: compare with the oldest copy.
+		this.#refusedDoc = this.#refusedDoc ?? old;
 		const fresh = new Y.Doc();
 		fresh.on('update', this.#onDocUpdate);
+		this.#watch.destroy();
+		this.#watch = this.#newWatch(fresh);
 		this.#doc = fresh;
+		if (this.#accepted) {
+			// Starts again from the server's state, which arrives as the fresh document's sync.
+			this.#accepted.destroy();
+			this.#accepted = new Y.Doc();
+		}
 		this.#localSeq = 0;
 		this.#ackedSeq = 0;
 		this.#setUnsynced();
@@ -443,12 +615,14 @@ export class BoardProvider {
 			this.synced = false;
 			this.#emit('synced', false);
 		}
-		// The offline copy holds the refused change too: start it again from the fresh document.
+		// The offline copy holds the refused change too. It is kept (closed) until the person has
+		// dealt with the tray; the fresh document starts an offline copy of its own.
 		if (this.#offline) {
 			const store = this.#offline;
 			this.#offline = null;
+			setOfflineGeneration(this.boardId, offlineGeneration(this.boardId) + 1);
 			this.#offlineReady = store
-				.clearData()
+				.destroy()
 				.catch(() => {})
 				.then(() => this.#openOffline(fresh));
 		}
@@ -462,7 +636,7 @@ export class BoardProvider {
 	async #openOffline(doc: Y.Doc): Promise<void> {
 		const { IndexeddbPersistence } = await import('y-indexeddb');
 		if (this.#destroyed || doc !== this.#doc) return;
-		const store = new IndexeddbPersistence(OFFLINE_PREFIX + this.boardId, doc);
+		const store = new IndexeddbPersistence(offlineName(this.boardId, offlineGeneration(this.boardId)), doc);
 		this.#offline = store as unknown as OfflineStore;
 		await store.whenSynced;
 	}
