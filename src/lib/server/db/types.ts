@@ -256,6 +256,14 @@ export interface BoardUpdateTable {
 }
 
 // Each feature adds its tables here (one block per aggregate).
+/** The member who introduced a Yjs client id on a board; only they may write under it. */
+export interface BoardClientTable {
+	board_id: string;
+	client_id: Bigint;
+	user_id: string;
+	claimed_at: Generated<Date>;
+}
+
 export interface Database {
 	organisation: OrganisationTable;
 	app_user: AppUserTable;
@@ -276,6 +284,7 @@ export interface Database {
 	survey_assignee: SurveyAssigneeTable;
 	board: BoardTable;
 	board_update: BoardUpdateTable;
+	board_client: BoardClientTable;
 }
 
 export type Organisation = Selectable<OrganisationTable>;
