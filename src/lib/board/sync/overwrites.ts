@@ -1,8 +1,10 @@
-// Tells a person when a value they set while offline lost to someone else's concurrent edit.
-// Yjs settles two writes of the same field by a fixed rule, so one of them silently wins; this
-// watches the fields the person wrote while their changes were not yet on the server, and when a
-// change from the server leaves such a field with another value, reports both values and who
-// set the winning one (the item's `updatedBy`), so the person can put theirs back.
+// Tells a person when a value they set lost to someone else's concurrent edit (typically made
+// while one of them was offline). Yjs settles two writes of the same field by a fixed rule, so
+// one of them silently wins. This remembers which map entry the person's write made for each
+// field; when a change from the server leaves another entry current, it looks at that entry's
+// origin: written on top of the person's entry, it is a later edit by someone who saw theirs
+// (no notice); otherwise the two were concurrent and the person's value lost, and they are told
+// both values and who set the winning one (the item's `updatedBy`) so they can put theirs back.
 import * as Y from 'yjs';
 import { MAP_POINTS, MAP_ROUTES, MAP_ZONES } from '../model/schema';
 
@@ -24,6 +26,21 @@ interface Written {
 	itemId: string;
 	field: string;
 	value: unknown;
+	/** The map entry the write made. */
+	entry: Y.ID;
+	at: number;
+}
+
+/** Writes remembered at most; the oldest are forgotten first. */
+const MAX_WRITTEN = 5000;
+
+function sameId(a: Y.ID | null | undefined, b: Y.ID | null | undefined) {
+	return !!a && !!b && a.client === b.client && a.clock === b.clock;
+}
+
+/** The entry (Yjs item) that currently holds `field` of an item map. */
+function currentEntry(map: Y.Map<unknown>, field: string): Y.Item | null {
+	return (map as unknown as { _map: Map<string, Y.Item> })._map.get(field) ?? null;
 }
 
 const ROOTS: Record<string, OverwriteNotice['kind']> = { [MAP_POINTS]: 'point', [MAP_ROUTES]: 'route', [MAP_ZONES]: 'zone' };
@@ -51,7 +68,6 @@ function itemOf(doc: Y.Doc, type: Y.AbstractType<unknown>): { kind: OverwriteNot
 export class OverwriteWatch {
 	#doc: Y.Doc;
 	#written = new Map<string, Written>();
-	#recording = false;
 	#isRemote: (origin: unknown) => boolean;
 	#onNotice: (n: OverwriteNotice) => void;
 	#seq = 0;
@@ -62,19 +78,6 @@ export class OverwriteWatch {
 		this.#isRemote = isRemote;
 		this.#onNotice = onNotice;
 		doc.on('afterTransaction', this.#after);
-	}
-
-	/** Record the person's writes (while their changes are not on the server). */
-	set recording(on: boolean) {
-		this.#recording = on;
-	}
-	get recording() {
-		return this.#recording;
-	}
-
-	/** Everything written is on the server now: forget it. */
-	settle() {
-		this.#written.clear();
 	}
 
 	get watching(): number {
@@ -88,17 +91,21 @@ export class OverwriteWatch {
 
 	#after = (tr: Y.Transaction) => {
 		const remote = this.#isRemote(tr.origin);
-		if (!remote && !tr.local) return; // offline copy loading, set-aside replays: not a person's write now
+		if (!remote && !tr.local) return; // the offline copy loading, replays: not a person's write now
 		if (!remote) {
-			if (!this.#recording) return;
 			tr.changed.forEach((keys, type) => {
 				const item = itemOf(this.#doc, type as Y.AbstractType<unknown>);
 				if (!item) return;
 				for (const field of keys) {
 					if (field === null || IGNORED.has(field)) continue;
-					this.#written.set(key({ itemId: item.itemId, field }), { kind: item.kind, itemId: item.itemId, field, value: plain(item.map.get(field)) });
+					const entry = currentEntry(item.map, field);
+					const k = key({ itemId: item.itemId, field });
+					this.#written.delete(k);
+					if (!entry || entry.deleted) continue;
+					this.#written.set(k, { kind: item.kind, itemId: item.itemId, field, value: plain(item.map.get(field)), entry: entry.id, at: Date.now() });
 				}
 			});
+			while (this.#written.size > MAX_WRITTEN) this.#written.delete(this.#written.keys().next().value!);
 			return;
 		}
 		if (this.#written.size === 0) return;
@@ -109,9 +116,13 @@ export class OverwriteWatch {
 				if (field === null) continue;
 				const w = this.#written.get(key({ itemId: item.itemId, field }));
 				if (!w) continue;
-				const now = plain(item.map.get(field));
-				if (JSON.stringify(now) === JSON.stringify(w.value)) continue;
+				const now = currentEntry(item.map, field);
+				if (now && sameId(now.id, w.entry)) continue; // the person's value still stands
 				this.#written.delete(key(w));
+				// Written on top of the person's entry: a later edit by someone who saw it.
+				if (!now || sameId(now.origin, w.entry)) continue;
+				const theirs = now.deleted ? undefined : plain(item.map.get(field));
+				if (JSON.stringify(theirs) === JSON.stringify(w.value)) continue;
 				const by = item.map.get('updatedBy');
 				const label = item.map.get('label');
 				this.#onNotice({
@@ -121,7 +132,7 @@ export class OverwriteWatch {
 					label: typeof label === 'string' && label.trim() ? label.trim() : item.kind === 'route' ? 'a cable route' : `a ${item.kind}`,
 					field,
 					mine: w.value,
-					theirs: now,
+					theirs,
 					by: typeof by === 'string' && by ? by : null,
 					at: Date.now()
 				});

@@ -289,19 +289,11 @@ export class BoardProvider {
 	}
 
 	#newWatch(doc: Y.Doc): OverwriteWatch {
-		const watch = new OverwriteWatch(
+		return new OverwriteWatch(
 			doc,
 			(origin) => origin === this,
 			(n) => this.#emit('overwritten', n)
 		);
-		watch.recording = !(this.#joined && this.synced);
-		return watch;
-	}
-
-	/** Offline edits are watched for overwrites until the server has all of them. */
-	#updateWatch() {
-		this.#watch.recording = !(this.#joined && this.synced);
-		if (this.#joined && this.synced && this.unsynced === 0) this.#watch.settle();
 	}
 
 	// ---- internals ------------------------------------------------------------------------
@@ -385,7 +377,6 @@ export class BoardProvider {
 			this.synced = false;
 			this.#emit('synced', false);
 		}
-		this.#updateWatch();
 		// Nobody else is known to be here while we are not connected.
 		const others = [...this.awareness.getStates().keys()].filter((id) => id !== this.awareness.clientID);
 		if (others.length) removeAwarenessStates(this.awareness, others, this);
@@ -414,7 +405,6 @@ export class BoardProvider {
 		const n = Math.max(0, this.#localSeq - this.#ackedSeq);
 		if (n === this.unsynced) return;
 		this.unsynced = n;
-		this.#updateWatch();
 		this.#emit('unsynced', n);
 	}
 
@@ -517,7 +507,6 @@ export class BoardProvider {
 			this.synced = true;
 			this.#emit('synced', true);
 		}
-		this.#updateWatch();
 		if (this.#pendingRefusal !== null) {
 			const reason = this.#pendingRefusal;
 			this.#pendingRefusal = null;
