@@ -7,6 +7,7 @@ import type { Role } from '../../src/lib/server/db/types';
 import { hashPassword } from '../../src/lib/server/auth/password';
 import { BoardProvider, type BoardProviderOptions } from '../../src/lib/board/sync/provider';
 import { Client } from './http';
+import { readBoard } from '../../src/lib/board/model';
 
 export const PASSWORD = 'board sync pass 1';
 let passwordHash: Promise<string> | null = null;
@@ -145,4 +146,9 @@ export async function storedDoc(db: DB, boardId: string, opts: { logOnly?: boole
 	const rows = await db.selectFrom('board_update').select(['update']).where('board_id', '=', boardId).orderBy('seq').execute();
 	for (const r of rows) Y.applyUpdate(doc, r.update);
 	return doc;
+}
+
+/** What the server has stored for a board, read through the board model. */
+export async function readBoardContent(db: DB, boardId: string) {
+	return readBoard(await storedDoc(db, boardId));
 }
