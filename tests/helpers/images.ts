@@ -97,3 +97,23 @@ export function hasGpsIfd(exif: Buffer | undefined) {
 	if (!exif) return false;
 	return exif.includes(Buffer.from([0x88, 0x25])) || exif.includes(Buffer.from([0x25, 0x88]));
 }
+
+/**
+ * A one-page PDF drawing of any page size, made with pdf-lib: a frame, a grid and a title block.
+ * 72 pt = 1 inch; 14 400 pt (200 in) is the largest page the PDF format allows.
+ */
+export async function pdfPage(widthPt: number, heightPt: number) {
+	const { PDFDocument, StandardFonts, rgb } = await import('pdf-lib');
+	const doc = await PDFDocument.create();
+	const page = doc.addPage([widthPt, heightPt]);
+	const font = await doc.embedFont(StandardFonts.Helvetica);
+	const m = Math.min(widthPt, heightPt) * 0.02;
+	page.drawRectangle({ x: m, y: m, width: widthPt - 2 * m, height: heightPt - 2 * m, borderColor: rgb(0, 0, 0), borderWidth: m / 10 });
+	for (let i = 1; i < 20; i++) {
+		page.drawLine({ start: { x: (widthPt * i) / 20, y: m }, end: { x: (widthPt * i) / 20, y: heightPt - m }, thickness: m / 40, color: rgb(0.6, 0.6, 0.6) });
+		page.drawLine({ start: { x: m, y: (heightPt * i) / 20 }, end: { x: widthPt - m, y: (heightPt * i) / 20 }, thickness: m / 40, color: rgb(0.6, 0.6, 0.6) });
+	}
+	page.drawRectangle({ x: widthPt * 0.3, y: heightPt * 0.3, width: widthPt * 0.4, height: heightPt * 0.2, color: rgb(0.1, 0.2, 0.6) });
+	page.drawText('Fan skid general arrangement', { x: m * 2, y: m * 2, size: m, font, color: rgb(0, 0, 0) });
+	return Buffer.from(await doc.save());
+}

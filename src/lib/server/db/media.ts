@@ -25,6 +25,7 @@ export function mediaDto(m: Media & { uploaded_by_name?: string | null }) {
 		...(m.uploaded_by_name !== undefined ? { uploadedByName: m.uploaded_by_name } : {}),
 		displayUrl: `/api/v1/media/${m.id}/display`,
 		thumbUrl: `/api/v1/media/${m.id}/thumb`,
+		originalUrl: `/api/v1/media/${m.id}/original`,
 		archivedAt: iso(m.archived_at),
 		createdAt: iso(m.created_at)!,
 		updatedAt: iso(m.updated_at)!

@@ -18,7 +18,8 @@ export function mediaContext() {
 		limits: {
 			...DEFAULT_LIMITS,
 			maxBytes: positive(env.MEDIA_MAX_BYTES, DEFAULT_LIMITS.maxBytes),
-			maxPixels: positive(env.MEDIA_MAX_PIXELS, DEFAULT_LIMITS.maxPixels)
+			maxPixels: positive(env.MEDIA_MAX_PIXELS, DEFAULT_LIMITS.maxPixels),
+			pdfRenderMaxPixels: positive(env.MEDIA_PDF_RENDER_MAX_PIXELS, DEFAULT_LIMITS.pdfRenderMaxPixels)
 		}
 	};
 	return cached;

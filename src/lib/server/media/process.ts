@@ -10,6 +10,11 @@ export interface MediaLimits {
 	maxBytes: number;
 	/** largest accepted picture in pixels (width × height), against decompression bombs */
 	maxPixels: number;
+	/**
+	 * Pixel budget for drawing the first page of a PDF (width × height of the rendered page;
+	 * the smaller of this and maxPixels applies). The page is scaled down to fit, never refused.
+	 */
+	pdfRenderMaxPixels: number;
 	/** long edge of the display image */
 	displayMaxEdge: number;
 	/** long edge of the thumbnail */
@@ -20,6 +25,11 @@ export const DEFAULT_LIMITS: MediaLimits = {
 	maxBytes: 25 * 1024 * 1024,
 	// 100 megapixels: above any tablet or phone camera in use; a bigger "photo" is refused.
 	maxPixels: 100_000_000,
+	// An ISO A-series sheet (1 : √2) at the 4096 px display edge is 4096 × 2896 = 11.9 MP, so every
+	// A-series drawing keeps the full display size; a squarer or bigger page is drawn smaller. The
+	// rendered page is held 4 bytes a pixel inside PDFium and again in sharp, so the budget bounds
+	// the memory a PDF can take (a 200 × 200 in page is drawn at 3464 × 3464, not 4096 × 4096).
+	pdfRenderMaxPixels: 12_000_000,
 	displayMaxEdge: 4096,
 	thumbMaxEdge: 480
 };
@@ -107,7 +117,7 @@ export async function processMedia(bytes: Buffer, limits: MediaLimits = DEFAULT_
 	if (type === 'application/pdf') {
 		const page = await renderFirstPage(bytes, limits);
 		source = page.data;
-		sourceOptions = { raw: { width: page.width, height: page.height, channels: page.channels } };
+		sourceOptions = { raw: { width: page.width, height: page.height, channels: 4 } };
 	} else {
 		let meta: Metadata;
 		try {
@@ -131,16 +141,19 @@ export async function processMedia(bytes: Buffer, limits: MediaLimits = DEFAULT_
 	let thumb: Variant;
 	try {
 		// autoOrient applies the EXIF orientation; no withMetadata/keepExif, so the output has
-		// no EXIF, GPS, XMP or IPTC blocks.
-		const base = sharp(source, sourceOptions).autoOrient();
-		const displayPipe = base
-			.clone()
-			.resize({ width: limits.displayMaxEdge, height: limits.displayMaxEdge, fit: 'inside', withoutEnlargement: true });
+		// no EXIF, GPS, XMP or IPTC blocks. One sharp instance per output, not clone(): clone
+		// copies the input buffer (structuredClone of the options), a full-size copy each time.
+		const open = () => {
+			const pipe = sharp(source, sourceOptions).autoOrient();
+			// A rendered PDF page is opaque (PDFium paints it white first): drop the alpha channel
+			// inside the pipeline rather than in another full-size copy of the page.
+			return type === 'application/pdf' ? pipe.removeAlpha() : pipe;
+		};
+		const displayPipe = open().resize({ width: limits.displayMaxEdge, height: limits.displayMaxEdge, fit: 'inside', withoutEnlargement: true });
 		if (displayFormat === 'jpeg') displayPipe.jpeg({ quality: 86, chromaSubsampling: '4:2:0' });
 		else if (displayFormat === 'webp') displayPipe.webp({ quality: 86 });
 		else displayPipe.png({ compressionLevel: 8 });
-		const thumbPipe = base
-			.clone()
+		const thumbPipe = open()
 			.resize({ width: limits.thumbMaxEdge, height: limits.thumbMaxEdge, fit: 'inside', withoutEnlargement: true })
 			.flatten({ background: '#ffffff' })
 			.webp({ quality: 78 });
@@ -173,7 +186,23 @@ async function library() {
 	return pdfium;
 }
 
-async function renderFirstPage(bytes: Buffer, limits: MediaLimits): Promise<{ data: Buffer; width: number; height: number; channels: 1 | 2 | 3 | 4 }> {
+/** Points to pixels: about 200 dpi (1 pt = 1/72 in), no more than the display image holds. */
+const PDF_DPI = 200;
+
+/**
+ * The pixel size to draw a PDF page of w × h points at: about 200 dpi, the long edge at most the
+ * display edge, and width × height within the PDF budget (and the picture limit). A huge page is
+ * drawn smaller, never refused for its size.
+ */
+export function pdfRenderSize(w: number, h: number, limits: MediaLimits): { width: number; height: number } {
+	if (!(Number.isFinite(w) && Number.isFinite(h) && w > 0 && h > 0)) throw new MediaError(422, 'The first page of the PDF has no size.');
+	const budget = Math.min(limits.maxPixels, limits.pdfRenderMaxPixels);
+	const scale = Math.min(PDF_DPI / 72, limits.displayMaxEdge / Math.max(w, h), Math.sqrt(budget / (w * h)));
+	// Rounding down keeps width × height within the budget.
+	return { width: Math.max(1, Math.floor(w * scale)), height: Math.max(1, Math.floor(h * scale)) };
+}
+
+async function renderFirstPage(bytes: Buffer, limits: MediaLimits): Promise<{ data: Buffer; width: number; height: number }> {
 	const run = pdfQueue.then(async () => {
 		const lib = await library();
 		let doc;
@@ -185,17 +214,14 @@ async function renderFirstPage(bytes: Buffer, limits: MediaLimits): Promise<{ da
 		try {
 			if (doc.getPageCount() < 1) throw new MediaError(422, 'The PDF has no pages.');
 			const page = doc.getPage(0);
-			const { originalWidth: w, originalHeight: h } = page.getOriginalSize();
-			// About 200 dpi (1 pt = 1/72 in), never above the display size.
-			const scale = Math.min(200 / 72, limits.displayMaxEdge / Math.max(w, h, 1));
-			if (w * scale * h * scale > limits.maxPixels) throw tooManyPixels(Math.round(w * scale), Math.round(h * scale), limits);
-			const img = await page.render({ scale, render: 'bitmap' });
-			// Drawings are black on white: paint transparent areas white.
-			const flat = await sharp(Buffer.from(img.data), { raw: { width: img.width, height: img.height, channels: 4 } })
-				.flatten({ background: '#ffffff' })
-				.raw()
-				.toBuffer({ resolveWithObject: true });
-			return { data: flat.data, width: flat.info.width, height: flat.info.height, channels: flat.info.channels };
+			const { originalWidth, originalHeight } = page.getOriginalSize();
+			const { width, height } = pdfRenderSize(originalWidth, originalHeight, limits);
+			// width/height with scale 1 draw the page into exactly width × height pixels, RGBA on an
+			// opaque white background (transparent: false).
+			const img = await page.render({ width, height, scale: 1, render: 'bitmap', transparent: false });
+			if (img.width !== width || img.height !== height || img.data.length !== width * height * 4) throw new Error('unexpected bitmap size');
+			// The bitmap is already a copy out of PDFium's memory: wrap it, do not copy it again.
+			return { data: Buffer.from(img.data.buffer, img.data.byteOffset, img.data.byteLength), width, height };
 		} catch (e) {
 			if (e instanceof MediaError) throw e;
 			throw new MediaError(422, 'The first page of the PDF could not be drawn. Export the drawing as PNG or JPEG and upload that.');

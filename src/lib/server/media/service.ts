@@ -7,6 +7,7 @@ import type { Storage } from '../storage/index';
 import { getMachine } from '../db/machines';
 import { RegisterError } from '../db/register';
 import { getMedia } from '../db/media';
+import { cleanFilename } from './filename';
 import { extensionOf, processMedia, type MediaLimits } from './process';
 
 export interface UploadInput {
@@ -17,13 +18,6 @@ export interface UploadInput {
 	caption?: string;
 	filename: string;
 	bytes: Buffer;
-}
-
-export function cleanFilename(name: string) {
-	const base = name.split(/[\\/]/).pop() ?? '';
-	// eslint-disable-next-line no-control-regex
-	const clean = base.replace(/[\u0000-\u001f\u007f"<>]/g, '').trim().slice(0, 200);
-	return clean || 'upload';
 }
 
 export async function storeUpload(db: DB, storage: Storage, limits: MediaLimits, input: UploadInput) {
@@ -55,7 +49,7 @@ export async function storeUpload(db: DB, storage: Storage, limits: MediaLimits,
 				machine_id: input.machineId,
 				kind: input.kind ?? (processed.mimeType === 'application/pdf' ? 'drawing' : 'photo'),
 				caption: input.caption ?? '',
-				original_filename: cleanFilename(input.filename),
+				original_filename: cleanFilename(input.filename, processed.extension),
 				mime_type: processed.mimeType,
 				display_mime_type: processed.display.mimeType,
 				thumb_mime_type: processed.thumb.mimeType,

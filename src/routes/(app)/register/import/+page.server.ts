@@ -1,4 +1,6 @@
 import { fail } from '@sveltejs/kit';
+import { z } from 'zod';
+import { optionalIdField } from '$lib/schemas/ids';
 import { requirePage } from '$lib/server/auth/require';
 import { context } from '$lib/server/context';
 import * as register from '$lib/server/db/register';
@@ -12,14 +14,16 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 	return { sites: sites.items.map((s) => ({ id: s.id, name: s.name })), columns: CSV_COLUMNS };
 };
 
-const siteOf = (v: FormDataEntryValue | null) => (typeof v === 'string' && /^[0-9a-f-]{36}$/i.test(v) ? v : null);
+const siteField = z.object({ siteId: optionalIdField('Choose the site from the list (reload the page if it is empty).') });
 
 export const actions: Actions = {
 	preview: async ({ locals, request, url }) => {
 		const viewer = requirePage(locals, 'register.write', url);
 		const data = await request.formData();
 		const file = data.get('file');
-		const siteId = siteOf(data.get('siteId'));
+		const site = siteField.safeParse({ siteId: data.get('siteId') });
+		if (!site.success) return fail(400, { step: 'preview' as const, siteId: null, error: site.error.issues[0]!.message });
+		const siteId = site.data.siteId;
 		if (!(file instanceof File) || file.size === 0) {
 			return fail(400, { step: 'preview' as const, siteId, error: file instanceof File && file.name ? 'The file is empty. Export the machine list as CSV with a header row and one machine per row.' : 'Choose a CSV file.' });
 		}
@@ -32,7 +36,9 @@ export const actions: Actions = {
 		const viewer = requirePage(locals, 'register.write', url);
 		const data = await request.formData();
 		const text = String(data.get('text') ?? '');
-		const siteId = siteOf(data.get('siteId'));
+		const site = siteField.safeParse({ siteId: data.get('siteId') });
+		if (!site.success) return fail(400, { step: 'preview' as const, siteId: null, error: site.error.issues[0]!.message });
+		const siteId = site.data.siteId;
 		const mode = data.get('mode') === 'valid' ? 'valid' : 'all';
 		const db = context().handle.db;
 		try {

@@ -1,6 +1,7 @@
 import { error, fail } from '@sveltejs/kit';
 import { invitationCreateSchema, memberRoleSchema } from '$lib/schemas/auth';
 import { parseForm, type FieldErrors } from '$lib/schemas/form';
+import { rowRefSchema } from '$lib/schemas/ids';
 import { requirePage } from '$lib/server/auth/require';
 import { can } from '$lib/server/auth/guard';
 import { context } from '$lib/server/context';
@@ -26,6 +27,10 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 	};
 };
 
+// The hidden `id` of the row a button acts on; anything but a uuid is a 400, never a query.
+const memberRef = rowRefSchema('This member could not be identified: reload the page and try again.');
+const invitationRef = rowRefSchema('This invitation could not be identified: reload the page and try again.');
+
 export const actions: Actions = {
 	invite: async ({ locals, request, url }) => {
 		const viewer = requirePage(locals, 'member.invite', url);
@@ -48,7 +53,9 @@ export const actions: Actions = {
 	},
 	revoke: async ({ locals, request, url }) => {
 		const viewer = requirePage(locals, 'member.invite', url);
-		const id = String((await request.formData()).get('id') ?? '');
+		const ref = parseForm(await request.formData(), invitationRef);
+		if (!ref.ok) return fail(400, { action: 'revoke', errors: { _: ref.errors.id } as FieldErrors });
+		const { id } = ref.data;
 		const db = context().handle.db;
 		if (!(await invitations.revoke(db, viewer.organisationId, id))) error(404, 'No such open invitation');
 		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'invitation.revoked', subjectType: 'invitation', subjectId: id });
@@ -57,7 +64,9 @@ export const actions: Actions = {
 	role: async ({ locals, request, url }) => {
 		const viewer = requirePage(locals, 'member.change-role', url);
 		const data = await request.formData();
-		const id = String(data.get('id') ?? '');
+		const ref = parseForm(data, memberRef);
+		if (!ref.ok) return fail(400, { action: 'role', id: '', errors: { role: ref.errors.id } as FieldErrors });
+		const { id } = ref.data;
 		const form = parseForm(data, memberRoleSchema);
 		if (!form.ok) return fail(400, { action: 'role', id, errors: form.errors });
 		const db = context().handle.db;
@@ -73,7 +82,9 @@ export const actions: Actions = {
 	},
 	remove: async ({ locals, request, url }) => {
 		const viewer = requirePage(locals, 'member.remove', url);
-		const id = String((await request.formData()).get('id') ?? '');
+		const ref = parseForm(await request.formData(), memberRef);
+		if (!ref.ok) return fail(400, { action: 'remove', id: '', errors: { _: ref.errors.id } as FieldErrors });
+		const { id } = ref.data;
 		const db = context().handle.db;
 		try {
 			const removed = await members.remove(db, viewer.organisationId, id);

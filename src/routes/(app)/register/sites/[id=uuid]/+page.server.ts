@@ -1,6 +1,7 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import { areaSchema, siteSchema, supplyPointSchema } from '$lib/schemas/register';
 import { parseForm } from '$lib/schemas/form';
+import { rowRefSchema } from '$lib/schemas/ids';
 import { requirePage } from '$lib/server/auth/require';
 import { can } from '$lib/server/auth/guard';
 import { context } from '$lib/server/context';
@@ -24,6 +25,9 @@ async function audit(locals: App.Locals, action: string, subjectType: string, su
 	const v = locals.viewer!;
 	await record(context().handle.db, { organisationId: v.organisationId, actorUserId: v.userId, action, subjectType, subjectId });
 }
+
+const areaRef = rowRefSchema('This area could not be identified: reload the page and try again.');
+const supplyPointRef = rowRefSchema('This supply point could not be identified: reload the page and try again.');
 
 export const actions: Actions = {
 	save: async ({ locals, request, url, params }) => {
@@ -58,8 +62,10 @@ export const actions: Actions = {
 	},
 	archiveArea: async ({ locals, request, url }) => {
 		const viewer = requirePage(locals, 'register.write', url);
-		const id = String((await request.formData()).get('id') ?? '');
-		if (!/^[0-9a-f-]{36}$/i.test(id) || !(await register.archiveArea(context().handle.db, viewer.organisationId, id))) error(404, 'No such area');
+		const ref = parseForm(await request.formData(), areaRef);
+		if (!ref.ok) return fail(400, { action: 'archiveArea', errors: { _: ref.errors.id } });
+		const { id } = ref.data;
+		if (!(await register.archiveArea(context().handle.db, viewer.organisationId, id))) error(404, 'No such area');
 		await audit(locals, 'area.archived', 'area', id);
 		return { action: 'archiveArea', saved: true };
 	},
@@ -78,8 +84,10 @@ export const actions: Actions = {
 	},
 	archiveSupplyPoint: async ({ locals, request, url }) => {
 		const viewer = requirePage(locals, 'register.write', url);
-		const id = String((await request.formData()).get('id') ?? '');
-		if (!/^[0-9a-f-]{36}$/i.test(id) || !(await register.archiveSupplyPoint(context().handle.db, viewer.organisationId, id))) error(404, 'No such supply point');
+		const ref = parseForm(await request.formData(), supplyPointRef);
+		if (!ref.ok) return fail(400, { action: 'archiveSupplyPoint', errors: { _: ref.errors.id } });
+		const { id } = ref.data;
+		if (!(await register.archiveSupplyPoint(context().handle.db, viewer.organisationId, id))) error(404, 'No such supply point');
 		await audit(locals, 'supply_point.archived', 'supply_point', id);
 		return { action: 'archiveSupplyPoint', saved: true };
 	}
