@@ -90,9 +90,9 @@ export const pointPatchSchema = pointFieldsSchema.partial().strict();
 export type PointPatch = z.infer<typeof pointPatchSchema>;
 
 export const routeFieldsSchema = z.object({
-	pointId: z.string().min(1, 'A route starts at a measurement point.'),
+	pointId: z.string().min(1, 'A route starts at a measurement point.').max(100, 'Not a point on this board.'),
 	/** A 24 V DC supply point from the register, or null with an exit label. */
-	supplyPointId: z.string().min(1).nullable(),
+	supplyPointId: z.string().min(1).max(100, 'Not a supply point from the register.').nullable(),
 	/** Where the cable leaves the photo when the supply is out of frame. */
 	exitLabel: z.string().trim().max(80, 'At most 80 characters.'),
 	lengthEnteredM: optionalNumber('Route length', 'm', 0, 10_000, { exclusiveMin: true }),

@@ -343,6 +343,20 @@ describe('the schema of every item', () => {
 		).toEqual(['schema.missing-key']);
 	});
 
+	test('item ids and references are short, plain strings', () => {
+		const { doc, r4 } = reviewedBoard();
+		const withId = (id: string) =>
+			check(doc, esme, (d) => {
+				const m = new Y.Map<unknown>();
+				maps(d).zones.set(id, m);
+				m.set('polygon', [[0, 0], [1, 0], [1, 1]]);
+			});
+		expect(withId('a1b2c3d4e5f6a1b2c3d4e5f6')).toEqual({ ok: true });
+		expect(codes(withId('z'.repeat(500_000)))).toEqual(['schema.item']);
+		expect(codes(withId('<img src=x>'))).toEqual(['schema.item']);
+		expect(codes(check(doc, esme, (d) => maps(d).routes.get(r4)!.set('supplyPointId', 's'.repeat(5000))))).toEqual(['schema.value']);
+	});
+
 	test('edits inside a nested type stored by an older client are seen', () => {
 		const doc = new Y.Doc();
 		const p = addPoint(doc, { x: 1, y: 1 });

@@ -132,6 +132,8 @@ const MAX_REFUSALS = 20;
 const MODEL_ROOTS: ReadonlySet<string> = new Set([MAP_POINTS, MAP_ROUTES, MAP_ZONES, MAP_META]);
 const ROOT_KIND: Readonly<Record<string, ItemKind>> = { [MAP_POINTS]: 'point', [MAP_ROUTES]: 'route', [MAP_ZONES]: 'zone' };
 const META_KEYS: ReadonlySet<string> = new Set([META_SCALE]);
+/** Ids the model makes (newId: 24 hex digits), with room for other short, plain ids. */
+const ITEM_ID = /^[A-Za-z0-9_-]{1,64}$/;
 const DECISION_KEYS: ReadonlySet<string> = new Set(['decidedBy', 'decidedByName', 'decidedAt']);
 
 type FieldSchema = z.ZodType;
@@ -630,13 +632,17 @@ function judge(
 			const label = kind === 'point' ? labelOf(mb, ma) : null;
 			const name = label ?? `A ${noun}`;
 
+			const created = ma !== null && mb === null;
+			const deleted = ma === null && rootB.has(id);
+			const replaced = ma !== null && mb !== null && itemIdentity(ma) !== itemIdentity(mb);
+			if ((created || (rawAfter !== undefined && !ma)) && !ITEM_ID.test(id)) {
+				out.push({ kind, id: id.slice(0, 64), code: 'schema.item', reason: `A ${noun} cannot have the id "${id.length > 24 ? `${id.slice(0, 24)}…` : id}".` });
+				continue;
+			}
 			if (rawAfter !== undefined && !ma) {
 				out.push({ kind, id, code: 'schema.item', reason: `${name} is not stored in the form the board uses.` });
 				continue;
 			}
-			const created = ma !== null && mb === null;
-			const deleted = ma === null && rootB.has(id);
-			const replaced = ma !== null && mb !== null && itemIdentity(ma) !== itemIdentity(mb);
 
 			// Which fields changed.
 			const changed: string[] = [];
