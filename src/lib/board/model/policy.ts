@@ -226,7 +226,16 @@ export function checkBoardChange(
 			docRefusal('document.incomplete', 'The change builds on earlier changes the board does not have. Reload the board and make it again.')
 		);
 	}
-	return judge(before, after, changes, actor, ctx, limits, update.byteLength, beforeBytes);
+	return safeJudge(before, after, changes, actor, ctx, limits, update.byteLength, beforeBytes);
+}
+
+/** A change the policy cannot judge is refused, never let through or thrown. */
+function safeJudge(...args: Parameters<typeof judge>): BoardPolicyResult {
+	try {
+		return judge(...args);
+	} catch {
+		return refuse(docRefusal('document.malformed', 'The change could not be checked. Reload the board.'));
+	}
 }
 
 export type LocalChangeResult<T> =
@@ -311,7 +320,7 @@ export function applyLocalChecked<T>(
 			docRefusal('limit.update-bytes', `This change is ${bytes(update.byteLength)}; one change may be at most ${bytes(limits.maxUpdateBytes)}. Make it in smaller steps.`)
 		);
 	} else {
-		const r = judge(doc, shadow, changes, actor, ctx, limits, update.byteLength, ctx.documentBytes ?? localBytes.get(doc));
+		const r = safeJudge(doc, shadow, changes, actor, ctx, limits, update.byteLength, ctx.documentBytes ?? localBytes.get(doc));
 		if (!r.ok) refusals.push(...r.refusals);
 	}
 	if (refusals.length > 0) {
