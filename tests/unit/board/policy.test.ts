@@ -31,7 +31,10 @@ import {
 	type BoardPolicyContext,
 	type BoardPolicyResult
 } from '../../../src/lib/board/model';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { PERMISSIONS } from '../../../src/lib/server/auth/guard';
+import { writeDemoBoard } from '../../../src/lib/server/db/seed-board';
 
 const esme: BoardActor = { role: 'engineer', userId: 'u-esme', name: 'Esme' };
 const admin: BoardActor = { role: 'admin', userId: 'u-ada', name: 'Ada' };
@@ -82,6 +85,12 @@ function reviewedBoard() {
 test('the roles the policy replicates are those of the guard', () => {
 	expect([...BOARD_WRITE_ROLES].sort()).toEqual([...PERMISSIONS['board.write']].sort());
 	expect([...REVIEW_DECIDE_ROLES].sort()).toEqual([...PERMISSIONS['review.decide']].sort());
+});
+
+test('the policy is shared code: it imports no server module and does no I/O', () => {
+	const src = readFileSync(join(__dirname, '../../../src/lib/board/model/policy.ts'), 'utf8');
+	const imports = [...src.matchAll(/from '([^']+)'/g)].map((m) => m[1]);
+	expect(imports.sort()).toEqual(['../../schemas/board', './schema', 'yjs', 'zod'].sort());
 });
 
 describe('review decisions are protected from technicians', () => {
@@ -218,6 +227,12 @@ describe('a technician surveys freely', () => {
 			(d) => deleteZone(d, z)
 		];
 		for (const op of ops) expect(check(doc, tam, op)).toEqual({ ok: true });
+	});
+
+	test('marking up the whole demo board in one go (as an offline sync would send it) is accepted', () => {
+		const empty = new Y.Doc();
+		const r = check(empty, tam, (d) => writeDemoBoard(d, { createdBy: 'u-tam', supplyPointId: 'a1b2c3d4-0000-4000-8000-000000000001' }));
+		expect(r).toEqual({ ok: true });
 	});
 
 	test('setting the scale is accepted while no point is approved', () => {
