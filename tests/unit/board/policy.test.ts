@@ -235,6 +235,21 @@ describe('a technician surveys freely', () => {
 		expect(r).toEqual({ ok: true });
 	});
 
+	test('a sync after working offline, which resends every deletion the device knows, is accepted', () => {
+		const { doc, p1, p4 } = reviewedBoard();
+		// History on the decided point: overwritten values leave deletions behind.
+		updatePoint(doc, p1, { notes: 'first' });
+		updatePoint(doc, p1, { notes: 'second' });
+		const device = cloneDoc(doc);
+		updatePoint(device, p4, { notes: 'measured offline', surfaceTempC: 48 });
+		addPoint(device, { x: 300, y: 300, createdBy: 'Tam' });
+		// What the provider sends as sync step 2: all the server lacks, plus the whole delete set.
+		const step2 = Y.encodeStateAsUpdate(device, Y.encodeStateVector(doc));
+		expect(checkBoardChange(doc, step2, tam, ctx)).toEqual({ ok: true });
+		// And a full state from a device that has nothing new is nothing to check, even for a viewer.
+		expect(checkBoardChange(doc, Y.encodeStateAsUpdate(cloneDoc(doc)), vic, ctx)).toEqual({ ok: true });
+	});
+
 	test('setting the scale is accepted while no point is approved', () => {
 		const doc = new Y.Doc();
 		addPoint(doc, { x: 1, y: 1 });
