@@ -42,7 +42,13 @@ const coord = z
 	.refine(Number.isFinite, 'Position must be a finite number.')
 	.refine((n) => Math.abs(n) <= COORD_LIMIT, 'Position is far outside the image.');
 
+export const coordSchema = coord;
 export const vec2Schema = z.tuple([coord, coord], { error: 'A corner is an [x, y] pair.' });
+
+/** A moment in ms since 1970, as Date.now() gives it. */
+export const timestampSchema = z
+	.number({ error: 'A time must be a number.' })
+	.refine((n) => Number.isFinite(n) && n >= 0 && n <= 8.64e15, 'Not a valid time.');
 
 function optionalNumber(label: string, unit: string, min: number, max: number, opts: { exclusiveMin?: boolean } = {}) {
 	const range = opts.exclusiveMin ? `above ${min} and up to ${max} ${unit}` : `${min} to ${max} ${unit}`;
@@ -84,9 +90,9 @@ export const pointPatchSchema = pointFieldsSchema.partial().strict();
 export type PointPatch = z.infer<typeof pointPatchSchema>;
 
 export const routeFieldsSchema = z.object({
-	pointId: z.string().min(1, 'A route starts at a measurement point.'),
+	pointId: z.string().min(1, 'A route starts at a measurement point.').max(100, 'Not a point on this board.'),
 	/** A 24 V DC supply point from the register, or null with an exit label. */
-	supplyPointId: z.string().min(1).nullable(),
+	supplyPointId: z.string().min(1).max(100, 'Not a supply point from the register.').nullable(),
 	/** Where the cable leaves the photo when the supply is out of frame. */
 	exitLabel: z.string().trim().max(80, 'At most 80 characters.'),
 	lengthEnteredM: optionalNumber('Route length', 'm', 0, 10_000, { exclusiveMin: true }),
@@ -107,6 +113,34 @@ export type RoutePatch = z.infer<typeof routePatchSchema>;
 
 export const routeVerticesSchema = z.array(vec2Schema).min(2, 'A cable route needs at least two points.').max(500);
 
+/** Statuses that record an engineer's review decision; only roles that may decide write them. */
+export const REVIEW_DECISIONS = ['flagged', 'rejected', 'approved'] as const;
+export type ReviewDecision = (typeof REVIEW_DECISIONS)[number];
+export function isReviewDecision(status: unknown): status is ReviewDecision {
+	return typeof status === 'string' && (REVIEW_DECISIONS as readonly string[]).includes(status);
+}
+
+/** Who made a point's review decision and when; written with the status, cleared on reopening. */
+export const pointDecisionSchema = z.object({
+	decidedBy: z.string().max(200, 'At most 200 characters.').nullable(),
+	decidedByName: z.string().max(200, 'At most 200 characters.').nullable(),
+	decidedAt: timestampSchema.nullable()
+});
+export type PointDecision = z.infer<typeof pointDecisionSchema>;
+
+/**
+ * Every key a point, route or zone may hold in the board document, with its schema. The board
+ * policy (board/model/policy.ts) refuses any other key and any value these refuse.
+ */
+export const pointItemShape = {
+	...pointFieldsSchema.shape,
+	...pointDecisionSchema.shape,
+	x: coord,
+	y: coord,
+	createdBy: z.string().max(200, 'At most 200 characters.'),
+	createdAt: timestampSchema
+};
+
 export const zoneFieldsSchema = z.object({
 	label: z.string().trim().max(60, 'At most 60 characters.'),
 	kind: z.enum(ZONE_KINDS, { error: 'Choose what rotates here.' })
@@ -115,6 +149,11 @@ export type ZoneFields = z.infer<typeof zoneFieldsSchema>;
 export const zonePatchSchema = zoneFieldsSchema.partial().strict();
 export type ZonePatch = z.infer<typeof zonePatchSchema>;
 export const zonePolygonSchema = z.array(vec2Schema).min(3, 'A keep-out zone needs at least three corners.').max(500);
+
+export const routeItemShape = { ...routeFieldsSchema.shape, vertices: routeVerticesSchema, createdAt: timestampSchema };
+export const zoneItemShape = { ...zoneFieldsSchema.shape, polygon: zonePolygonSchema, createdAt: timestampSchema };
+/** Keys without which the board cannot show an item at all. */
+export const REQUIRED_ITEM_KEYS = { point: ['x', 'y'], route: ['pointId', 'vertices'], zone: ['polygon'] } as const;
 
 export const scaleSchema = z
 	.object({

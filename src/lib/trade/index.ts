@@ -31,6 +31,7 @@ export {
 	type PointEvaluationInput
 } from './evaluate-point';
 export * from './evaluate-machine';
+export * from './evaluate-board';
 export * from './evaluate-install';
 export * from './checklist';
 export * from './finding-units';

@@ -1,8 +1,7 @@
 import { describe, expect, test } from 'vitest';
 import * as Y from 'yjs';
 import { addPoint, addRoute, addZone, readBoard, setScale, updatePoint, updateRoute } from '../../../src/lib/board/model';
-import { compareLabels, evaluateBoard, measureMm, pointDistance, routeGeometry } from '../../../src/lib/board/findings';
-import type { MachineInput } from '../../../src/lib/trade';
+import { compareLabels, evaluateBoard, measureMm, pointDistance, routeGeometry, type MachineInput } from '../../../src/lib/trade';
 
 // A steady 1480 r/min pump motor, safe area: the machine-level rules all pass.
 const machine: MachineInput = { speedRpm: 1480, speedMode: 'constant', hasSpeedSignal: false, hazardousArea: false };

@@ -171,3 +171,23 @@ describe('undo tracks only the user’s own edits', () => {
 		expect(readBoard(b)).toEqual(readBoard(a));
 	});
 });
+
+describe('review decisions', () => {
+	test('the status field records who decided and when; reopening clears it', async () => {
+		const { statusCommit } = await import('../../../src/lib/board/panel/commit');
+		const doc = new Y.Doc();
+		const id = addPoint(doc, { x: 1, y: 1 });
+		const commit = statusCommit(doc, id, { userId: 'u-esme', name: 'Esme' });
+		expect(commit('approved')).toBeNull();
+		const [p] = readBoard(doc).points;
+		expect(p).toMatchObject({ status: 'approved', decidedBy: 'u-esme', decidedByName: 'Esme' });
+		expect(Math.abs(p.decidedAt! - Date.now())).toBeLessThan(60_000);
+		expect(commit('done')).toMatch(/Status: choose/);
+		expect(commit('proposed')).toBeNull();
+		expect(readBoard(doc).points[0]).toMatchObject({ status: 'proposed', decidedBy: null, decidedByName: null, decidedAt: null });
+		// A point never decided keeps no decision keys at all.
+		const other = addPoint(doc, { x: 2, y: 2 });
+		statusCommit(doc, other, { userId: 'u-tam', name: 'Tam' })('proposed');
+		expect(maps(doc).points.get(other)!.has('decidedBy')).toBe(false);
+	});
+});

@@ -4,6 +4,9 @@
 import * as Y from 'yjs';
 import type { Vec2 } from '../../trade';
 import {
+	isReviewDecision,
+	pointDecisionSchema,
+	pointFieldsSchema,
 	pointPatchSchema,
 	routeFieldsSchema,
 	routePatchSchema,
@@ -13,6 +16,7 @@ import {
 	zonePatchSchema,
 	zonePolygonSchema,
 	type PointPatch,
+	type PointStatus,
 	type RoutePatch,
 	type ScaleData,
 	type ZonePatch
@@ -100,6 +104,39 @@ export function updatePoint(doc: Y.Doc, id: string, patch: PointPatch, origin: O
 	const m = maps(doc).points.get(id);
 	if (!(m instanceof Y.Map)) return false;
 	doc.transact(() => setAll(m, fields), origin);
+	return true;
+}
+
+export interface Decider {
+	userId: string;
+	name: string;
+}
+
+/**
+ * Records a review decision (or reopens the point with 'proposed'): the status together with who
+ * decided and when, so a refusal can later say "approved by Esme at 10:42". Only roles that may
+ * decide should call it; the board policy refuses it from anyone else.
+ */
+export function decidePoint(
+	doc: Y.Doc,
+	id: string,
+	status: PointStatus,
+	by: Decider,
+	at: number = Date.now(),
+	origin: Origin = LOCAL_ORIGIN
+): boolean {
+	const s = pointFieldsSchema.shape.status.parse(status);
+	const m = maps(doc).points.get(id);
+	if (!(m instanceof Y.Map)) return false;
+	const decided = isReviewDecision(s);
+	const record = pointDecisionSchema.parse(
+		decided ? { decidedBy: by.userId, decidedByName: by.name, decidedAt: at } : { decidedBy: null, decidedByName: null, decidedAt: null }
+	);
+	doc.transact(() => {
+		m.set('status', s);
+		// Reopening clears the record, but a point never decided keeps its keys absent.
+		for (const [k, v] of Object.entries(record)) if (decided || m.has(k)) m.set(k, v);
+	}, origin);
 	return true;
 }
 

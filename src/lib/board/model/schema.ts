@@ -5,11 +5,13 @@
 import * as Y from 'yjs';
 import type { Vec2 } from '../../trade';
 import {
+	pointDecisionSchema,
 	pointFieldsSchema,
 	routeFieldsSchema,
 	scaleSchema,
 	vec2Schema,
 	zoneFieldsSchema,
+	type PointDecision,
 	type PointFields,
 	type RouteFields,
 	type ScaleData,
@@ -30,7 +32,7 @@ export const LOCAL_ORIGIN: unique symbol = Symbol('spotface.board.local');
 
 export type ItemKind = 'point' | 'route' | 'zone';
 
-export interface BoardPoint extends PointFields {
+export interface BoardPoint extends PointFields, PointDecision {
 	id: string;
 	x: number;
 	y: number;
@@ -128,13 +130,15 @@ export function readPoint(id: string, m: Y.Map<unknown>): BoardPoint | null {
 	const y = num(m.get('y'));
 	if (x === null || y === null) return null;
 	const fields = readFields<PointFields>(m, pointFieldsSchema.shape, { label: '?', ...POINT_DEFAULTS });
+	const decision = readFields<PointDecision>(m, pointDecisionSchema.shape, { decidedBy: null, decidedByName: null, decidedAt: null });
 	return {
 		id,
 		x,
 		y,
 		createdBy: typeof m.get('createdBy') === 'string' ? (m.get('createdBy') as string) : '',
 		createdAt: num(m.get('createdAt')) ?? 0,
-		...fields
+		...fields,
+		...decision
 	};
 }
 

@@ -11,7 +11,7 @@ import {
 	type PointFieldKey,
 	type RouteFieldKey
 } from '../../schemas/board';
-import { updatePoint, updateRoute, updateZone } from '../model/ops';
+import { decidePoint, updatePoint, updateRoute, updateZone, type Decider } from '../model/ops';
 
 type Kind = 'number' | 'choice' | 'text';
 
@@ -30,6 +30,15 @@ export function pointCommit(doc: Y.Doc, id: string, key: PointFieldKey, kind: Ki
 		const v = fieldInput(kind, raw);
 		const err = checkField(pointFieldsSchema, key, v);
 		return err ?? guarded(() => updatePoint(doc, id, { [key]: v }));
+	};
+}
+
+/** The status goes with who set it and when, so a later refusal can name the decider. */
+export function statusCommit(doc: Y.Doc, id: string, by: Decider) {
+	return (raw: string): string | null => {
+		const v = fieldInput('choice', raw);
+		const err = checkField(pointFieldsSchema, 'status', v);
+		return err ?? guarded(() => decidePoint(doc, id, pointFieldsSchema.shape.status.parse(v), by));
 	};
 }
 

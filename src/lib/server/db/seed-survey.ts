@@ -1,14 +1,13 @@
 // Demo survey: a site walk under way at the invented water-treatment works, with one board
 // already marked up on the sketch of raw water pump 1 so the live board has something to show
-// (a good point, a point on a fan cowl that fails, a point still missing a measurement, a
-// keep-out zone round the coupling, and two cable routes, one of them through the zone).
+// (its content is in seed-board.ts).
 // Idempotent: the survey is looked up by title.
 import * as Y from 'yjs';
 import type { DB } from './index';
 import * as surveys from './surveys';
 import * as boards from './boards';
 import { DEMO_SITE } from './seed-register';
-import { addPoint, addRoute, addZone, setScale } from '../../board/model/ops';
+import { writeDemoBoard } from './seed-board';
 
 export const DEMO_SURVEY = 'Site walk: raw water and aeration (demo)';
 
@@ -78,33 +77,8 @@ export async function seedSurvey(db: DB, organisationId: string) {
 		.orderBy('supply_point.name')
 		.executeTakeFirst();
 
-	// Coordinates are pixels of the 1600 × 1000 demo sketch.
 	const doc = new Y.Doc();
-	const by = tech?.id ?? '';
-	setScale(doc, { a: [900, 800], b: [1420, 800], lengthMm: 800 }, 'seed');
-	const good = addPoint(doc, {
-		x: 610, y: 560, createdBy: by, component: 'Pump drive-end bearing housing', direction: 'radial_h',
-		surface: 'machined_housing', mounting: 'stud', material: 'cast_iron', flatDiameterMm: 40, wallThicknessMm: 22,
-		distanceToBearingMm: 20, surfaceTempC: 45
-	}, 'seed');
-	addPoint(doc, {
-		x: 850, y: 610, createdBy: by, component: 'Motor non-drive end (fan cowl)', direction: 'radial_v',
-		surface: 'sheet_cover', mounting: 'stud', flatDiameterMm: 35, wallThicknessMm: 2,
-		notes: 'Only flat spot in reach; the cowl is sheet metal.'
-	}, 'seed');
-	const pending = addPoint(doc, {
-		x: 960, y: 520, createdBy: by, component: 'Motor drive-end bearing housing', direction: 'radial_h',
-		surface: 'cast_housing', mounting: 'bonded_pad', flatDiameterMm: 32
-	}, 'seed');
-	addZone(doc, { label: 'Coupling', kind: 'coupling', polygon: [[680, 535], [780, 535], [780, 685], [680, 685]] }, 'seed');
-	addRoute(doc, {
-		pointId: good, supplyPointId: supply?.id ?? null, exitLabel: supply ? '' : 'Junction box JB-1',
-		vertices: [[610, 560], [610, 400], [1500, 400], [1500, 850]], lengthEnteredM: 18, crossSectionMm2: 0.75, fixings: 'clips'
-	}, 'seed');
-	addRoute(doc, {
-		pointId: pending, supplyPointId: supply?.id ?? null, exitLabel: supply ? '' : 'Junction box JB-1',
-		vertices: [[960, 520], [730, 600], [730, 900]], crossSectionMm2: 0.75, fixings: 'ties'
-	}, 'seed');
+	writeDemoBoard(doc, { createdBy: tech?.id ?? '', supplyPointId: supply?.id ?? null });
 	await db
 		.updateTable('board')
 		.set({ snapshot: Buffer.from(Y.encodeStateAsUpdate(doc)) })

@@ -1,29 +1,75 @@
-// Live findings for a board: joins the document (points, routes, zones, scale) with the
-// machine from the register and the organisation's thresholds, and asks the rule engine.
-// Lengths measured on a calibrated photo are estimates (perspective, lens distortion), so a
-// tape measurement typed in always wins over them.
-import {
-	distance,
-	evaluatePoint,
-	metresPerUnit,
-	polylineCrossesPolygon,
-	polylineLength,
-	ruleInfo,
-	worstSeverity,
-	type Finding,
-	type MachineInput,
-	type RouteInput,
-	type Severity,
-	type Thresholds,
-	type Vec2
-} from '../trade';
-import type { ScaleData } from '../schemas/board';
-import type { BoardPoint, BoardRoute, BoardSnapshot, BoardZone } from './model/schema';
+// Findings for a whole board: its points, cable routes, keep-out zones and scale, with the machine
+// from the register and the organisation's thresholds, checked by the rule engine. Pure and free
+// of Yjs, so the browser (live, as people draw) and the server (pages, exports, approval) get the
+// same findings from the same content: pass the board model's BoardSnapshot, or any plain object
+// of the same shape (e.g. read from a stored document).
+//
+// Lengths measured on a calibrated photo are estimates (perspective, lens distortion), so a tape
+// measurement typed in always wins over them.
+import type { Finding, Severity } from './findings';
+import { worstSeverity } from './findings';
+import { distance, metresPerUnit, polylineCrossesPolygon, polylineLength, type Vec2 } from './geometry';
+import { evaluatePoint, type MachineInput, type RouteInput } from './evaluate-point';
+import { ruleInfo } from './rules';
+import type { Thresholds } from './thresholds';
+
+/** A calibration line on the photo (image pixels) and its real length. */
+export interface BoardScaleInput {
+	a: Vec2;
+	b: Vec2;
+	lengthMm: number;
+}
+
+/** What the checks read from a measurement point; unknown choices come out as findings. */
+export interface BoardPointInput {
+	id: string;
+	surface: string | null;
+	mounting: string | null;
+	material: string | null;
+	flatDiameterMm: number | null;
+	wallThicknessMm: number | null;
+	/** Entered (tape measure): wins over the line measured on the photo. */
+	distanceToBearingMm: number | null;
+	/** Seat to bearing, drawn on the photo (image coordinates); its length follows the scale. */
+	distanceLine: [Vec2, Vec2] | null;
+	surfaceTempC: number | null;
+}
+
+export interface BoardRouteInput {
+	id: string;
+	pointId: string;
+	vertices: Vec2[];
+	lengthEnteredM: number | null;
+	crossSectionMm2: number | null;
+	supplyV: number | null;
+	/** 'none' when the cable will not be fixed along the route. */
+	fixings: string | null;
+}
+
+export interface BoardZoneInput {
+	id: string;
+	polygon: Vec2[];
+}
+
+/**
+ * A board's content, oldest items first (the first route drawn from a point is the one checked).
+ * Routes whose point is not on the board are left out by the caller (the model's readBoard does).
+ */
+export interface BoardContent<
+	P extends BoardPointInput = BoardPointInput,
+	R extends BoardRouteInput = BoardRouteInput,
+	Z extends BoardZoneInput = BoardZoneInput
+> {
+	points: readonly P[];
+	routes: readonly R[];
+	zones: readonly Z[];
+	scale: BoardScaleInput | null;
+}
 
 export type ValueSource = 'entered' | 'measured' | 'scale';
 
 /** Metres per image pixel, or null when the board has no usable scale. */
-export function scaleMetresPerUnit(scale: ScaleData | null): number | null {
+export function scaleMetresPerUnit(scale: BoardScaleInput | null): number | null {
 	if (!scale) return null;
 	try {
 		return metresPerUnit(scale.a, scale.b, scale.lengthMm / 1000);
@@ -33,9 +79,15 @@ export function scaleMetresPerUnit(scale: ScaleData | null): number | null {
 }
 
 /** A length on the photo in mm, or null without a scale. */
-export function photoLengthMm(points: Vec2[], scale: ScaleData | null): number | null {
+export function photoLengthMm(points: Vec2[], scale: BoardScaleInput | null): number | null {
 	const m = scaleMetresPerUnit(scale);
 	return m === null ? null : polylineLength(points) * m * 1000;
+}
+
+/** Straight-line length of a measuring line, mm, or null without a scale. */
+export function measureMm(a: Vec2, b: Vec2, scale: BoardScaleInput | null): number | null {
+	const m = scaleMetresPerUnit(scale);
+	return m === null ? null : distance(a, b) * m * 1000;
 }
 
 export interface DistanceValue {
@@ -46,7 +98,10 @@ export interface DistanceValue {
 	measuredMm: number | null;
 }
 
-export function pointDistance(point: Pick<BoardPoint, 'distanceToBearingMm' | 'distanceLine'>, scale: ScaleData | null): DistanceValue {
+export function pointDistance(
+	point: Pick<BoardPointInput, 'distanceToBearingMm' | 'distanceLine'>,
+	scale: BoardScaleInput | null
+): DistanceValue {
 	const measuredMm = point.distanceLine ? photoLengthMm(point.distanceLine, scale) : null;
 	if (point.distanceToBearingMm !== null) return { mm: point.distanceToBearingMm, source: 'entered', measuredMm };
 	if (measuredMm !== null) return { mm: measuredMm, source: 'measured', measuredMm };
@@ -63,7 +118,11 @@ export interface RouteGeometry {
 	crossesZoneIds: string[];
 }
 
-export function routeGeometry(route: BoardRoute, zones: readonly BoardZone[], scale: ScaleData | null): RouteGeometry {
+export function routeGeometry(
+	route: Pick<BoardRouteInput, 'vertices' | 'lengthEnteredM'>,
+	zones: readonly BoardZoneInput[],
+	scale: BoardScaleInput | null
+): RouteGeometry {
 	const photoMm = photoLengthMm(route.vertices, scale);
 	const photoLengthM = photoMm === null ? null : photoMm / 1000;
 	const crossesZoneIds = zones.filter((z) => polylineCrossesPolygon(route.vertices, z.polygon)).map((z) => z.id);
@@ -72,7 +131,7 @@ export function routeGeometry(route: BoardRoute, zones: readonly BoardZone[], sc
 	return { photoLengthM: null, lengthM: null, lengthSource: null, crossesZoneIds };
 }
 
-function routeInput(route: BoardRoute, g: RouteGeometry): RouteInput {
+function routeInput(route: BoardRouteInput, g: RouteGeometry): RouteInput {
 	// The rule engine reports a missing length or cross-section by name; pass them through as null.
 	return {
 		lengthM: g.lengthM as number,
@@ -106,8 +165,8 @@ const CHOICE_PROMPTS: Record<string, { rule?: string; message: string }> = {
 
 /**
  * A choice or value not yet made on a point being surveyed is a job still to do, not a broken
- * record: the engine's "missing" fail for these few fields becomes a "check" with a prompt.
- * Wrong values (out of range, unknown) stay fails.
+ * record: the engine's "missing" fail for these few fields becomes a "check" with a prompt (the
+ * finding keeps its `field` and `missing` flag). Wrong values (out of range, unknown) stay fails.
  */
 function softenMissing(findings: Finding[]): Finding[] {
 	return findings.map((f) => {
@@ -121,12 +180,19 @@ function softenMissing(findings: Finding[]): Finding[] {
 	});
 }
 
-export interface PointEvaluation {
+/** A finding about the cable route: a route rule, or an input finding on a route field. */
+export function isRouteFinding(f: Pick<Finding, 'rule' | 'field'>): boolean {
+	return f.rule.startsWith('route.') || (typeof f.field === 'string' && f.field.startsWith('route.'));
+}
+
+export interface PointEvaluation<R extends BoardRouteInput = BoardRouteInput> {
 	id: string;
+	/** Every rule for the point, its route and the machine, in the engine's order. */
 	findings: Finding[];
 	worst: Severity;
 	distance: DistanceValue;
-	route: BoardRoute | null;
+	/** The route checked with the point (the first drawn from it), or null. */
+	route: R | null;
 }
 
 export interface RouteEvaluation {
@@ -137,27 +203,47 @@ export interface RouteEvaluation {
 	worst: Severity;
 }
 
-export interface BoardEvaluation {
-	points: Map<string, PointEvaluation>;
+export interface ZoneEvaluation {
+	id: string;
+	/** Cable routes that touch or enter the zone. */
+	crossingRouteIds: string[];
+}
+
+export interface BoardEvaluation<R extends BoardRouteInput = BoardRouteInput> {
+	points: Map<string, PointEvaluation<R>>;
 	routes: Map<string, RouteEvaluation>;
+	zones: Map<string, ZoneEvaluation>;
+	/** Points by their worst severity. */
 	counts: Record<Severity, number>;
 }
 
-export interface EvaluationContext {
+export interface BoardEvaluationContext {
 	machine: MachineInput;
 	/** The organisation's threshold overrides as stored; bad ones show up as findings. */
 	thresholds?: Partial<Thresholds> | Record<string, unknown> | null;
 }
 
-export function evaluateBoard(board: BoardSnapshot, ctx: EvaluationContext): BoardEvaluation {
-	const routeOf = new Map<string, BoardRoute>();
+/**
+ * Checks every point of a board with its first cable route, the route geometry against the
+ * keep-out zones and the scale, and the machine-level rules on each point. Never throws on bad
+ * content or settings: they come out as findings.
+ */
+export function evaluateBoard<P extends BoardPointInput, R extends BoardRouteInput, Z extends BoardZoneInput>(
+	board: BoardContent<P, R, Z>,
+	ctx: BoardEvaluationContext
+): BoardEvaluation<R> {
+	const routeOf = new Map<string, R>();
 	for (const r of board.routes) if (!routeOf.has(r.pointId)) routeOf.set(r.pointId, r);
-	const points = new Map<string, PointEvaluation>();
+	const points = new Map<string, PointEvaluation<R>>();
 	const routes = new Map<string, RouteEvaluation>();
+	const zones = new Map<string, ZoneEvaluation>();
 	const counts: Record<Severity, number> = { pass: 0, warn: 0, fail: 0 };
 
+	for (const z of board.zones) zones.set(z.id, { id: z.id, crossingRouteIds: [] });
 	for (const r of board.routes) {
-		routes.set(r.id, { id: r.id, geometry: routeGeometry(r, board.zones, board.scale), findings: [], worst: 'pass' });
+		const geometry = routeGeometry(r, board.zones, board.scale);
+		routes.set(r.id, { id: r.id, geometry, findings: [], worst: 'pass' });
+		for (const zid of geometry.crossesZoneIds) zones.get(zid)?.crossingRouteIds.push(r.id);
 	}
 
 	for (const p of board.points) {
@@ -174,7 +260,7 @@ export function evaluateBoard(board: BoardSnapshot, ctx: EvaluationContext): Boa
 					wallThicknessMm: p.wallThicknessMm,
 					distanceToBearingMm: dist.mm,
 					surfaceTempC: p.surfaceTempC,
-					material: p.material
+					material: p.material as never
 				},
 				route: route && g ? routeInput(route, g) : null
 			},
@@ -189,7 +275,7 @@ export function evaluateBoard(board: BoardSnapshot, ctx: EvaluationContext): Boa
 		counts[worst]++;
 		points.set(p.id, { id: p.id, findings, worst, distance: dist, route });
 		if (route) {
-			const rf = findings.filter((f) => f.rule.startsWith('route.') || (f.rule === 'input.invalid' && /\(route\./.test(f.message)));
+			const rf = findings.filter(isRouteFinding);
 			const entry = routes.get(route.id)!;
 			entry.findings = rf;
 			entry.worst = worstSeverity(rf);
@@ -209,13 +295,7 @@ export function evaluateBoard(board: BoardSnapshot, ctx: EvaluationContext): Boa
 		];
 		entry.worst = 'warn';
 	}
-	return { points, routes, counts };
-}
-
-/** Straight-line length of a measuring line, mm, or null without a scale. */
-export function measureMm(a: Vec2, b: Vec2, scale: ScaleData | null): number | null {
-	const m = scaleMetresPerUnit(scale);
-	return m === null ? null : distance(a, b) * m * 1000;
+	return { points, routes, zones, counts };
 }
 
 /** Natural order of labels: P2 before P10. */
