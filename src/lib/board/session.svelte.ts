@@ -3,7 +3,7 @@
 import * as Y from 'yjs';
 import { Awareness } from 'y-protocols/awareness';
 import type { Vec2 } from '../trade';
-import { addPoint, addZone, createUndoManager, LOCAL_ORIGIN, maps, readBoard, setScale, type BoardSnapshot } from './model';
+import { addPoint, addZone, createUndoManager, LOCAL_ORIGIN, maps, readBoard, setEditor, setScale, type BoardSnapshot } from './model';
 import { pointPatchSchema, zonePatchSchema, type ScaleData } from '../schemas/board';
 import type { SetAsideEntry } from './sync/set-aside';
 import type { OverwriteNotice } from './sync/overwrites';
@@ -106,6 +106,7 @@ export class LiveBoard {
 	#setAside = $state.raw<SetAsideEntry[]>([]);
 	#overwrites = $state.raw<OverwriteNotice[]>([]);
 	#boardId: string | null;
+	#user: BoardUser;
 	#cleanup: Array<() => void> = [];
 	#unbindDoc: (() => void) | null = null;
 	#cursorTimer: ReturnType<typeof setTimeout> | null = null;
@@ -113,6 +114,7 @@ export class LiveBoard {
 
 	constructor(doc: Y.Doc, provider: BoardSyncProvider | null, user: BoardUser) {
 		this.#provider = provider;
+		this.#user = user;
 		this.#boardId = provider?.boardId ?? null;
 		if (this.#boardId) this.#setAside = readSetAside(this.#boardId);
 		this.awareness = provider?.awareness ?? new Awareness(doc);
@@ -174,6 +176,7 @@ export class LiveBoard {
 		this.#unbindDoc?.();
 		this.#undo?.destroy();
 		this.#doc = doc;
+		setEditor(doc, this.#user.name);
 		const undo = createUndoManager(doc);
 		this.#undo = undo;
 		const refresh = () => (this.#snapshot = readBoard(doc));
@@ -290,6 +293,8 @@ export class LiveBoard {
 		this.#doc.transact(() => {
 			if (n.mine === undefined) item.delete(n.field);
 			else item.set(n.field, n.mine);
+			item.set('updatedBy', this.#user.name);
+			item.set('updatedAt', Date.now());
 		}, LOCAL_ORIGIN);
 		this.dismissOverwrite(id);
 		return true;

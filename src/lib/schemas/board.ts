@@ -132,7 +132,14 @@ export type PointDecision = z.infer<typeof pointDecisionSchema>;
  * Every key a point, route or zone may hold in the board document, with its schema. The board
  * policy (board/model/policy.ts) refuses any other key and any value these refuse.
  */
+/** Who last changed an item and when (for telling people whose value replaced theirs). */
+export const editStampShape = {
+	updatedBy: z.string().max(200, 'At most 200 characters.'),
+	updatedAt: timestampSchema
+};
+
 export const pointItemShape = {
+	...editStampShape,
 	...pointFieldsSchema.shape,
 	...pointDecisionSchema.shape,
 	x: coord,
@@ -150,8 +157,8 @@ export const zonePatchSchema = zoneFieldsSchema.partial().strict();
 export type ZonePatch = z.infer<typeof zonePatchSchema>;
 export const zonePolygonSchema = z.array(vec2Schema).min(3, 'A keep-out zone needs at least three corners.').max(500);
 
-export const routeItemShape = { ...routeFieldsSchema.shape, vertices: routeVerticesSchema, createdAt: timestampSchema };
-export const zoneItemShape = { ...zoneFieldsSchema.shape, polygon: zonePolygonSchema, createdAt: timestampSchema };
+export const routeItemShape = { ...routeFieldsSchema.shape, ...editStampShape, vertices: routeVerticesSchema, createdAt: timestampSchema };
+export const zoneItemShape = { ...zoneFieldsSchema.shape, ...editStampShape, polygon: zonePolygonSchema, createdAt: timestampSchema };
 /** Keys without which the board cannot show an item at all. */
 export const REQUIRED_ITEM_KEYS = { point: ['x', 'y'], route: ['pointId', 'vertices'], zone: ['polygon'] } as const;
 

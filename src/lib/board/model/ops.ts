@@ -32,10 +32,24 @@ export function newId(): string {
 	return Array.from(bytes, (b) => b.toString(16).padStart(2, '0')).join('');
 }
 
+/** Who edits a document here: each change an operation makes is signed with this name. */
+const editors = new WeakMap<Y.Doc, string>();
+
+export function setEditor(doc: Y.Doc, name: string | null): void {
+	if (name) editors.set(doc, name.slice(0, 200));
+	else editors.delete(doc);
+}
+
 function setAll(m: Y.Map<unknown>, fields: Record<string, unknown>) {
 	for (const [k, v] of Object.entries(fields)) {
 		if (v === undefined) continue;
 		m.set(k, v);
+	}
+	const doc = m.doc;
+	const editor = doc ? editors.get(doc) : undefined;
+	if (editor) {
+		m.set('updatedBy', editor);
+		m.set('updatedAt', Date.now());
 	}
 }
 
@@ -88,12 +102,11 @@ export function movePoint(doc: Y.Doc, id: string, x: number, y: number, origin: 
 	const m = maps(doc).points.get(id);
 	if (!(m instanceof Y.Map)) return false;
 	doc.transact(() => {
-		m.set('x', px);
-		m.set('y', py);
+		setAll(m, { x: px, y: py });
 		maps(doc).routes.forEach((r) => {
 			if (!(r instanceof Y.Map) || r.get('pointId') !== id) return;
 			const v = r.get('vertices');
-			if (Array.isArray(v) && v.length >= 2) r.set('vertices', [[px, py], ...v.slice(1)]);
+			if (Array.isArray(v) && v.length >= 2) setAll(r, { vertices: [[px, py], ...v.slice(1)] });
 		});
 	}, origin);
 	return true;
@@ -133,7 +146,7 @@ export function decidePoint(
 		decided ? { decidedBy: by.userId, decidedByName: by.name, decidedAt: at } : { decidedBy: null, decidedByName: null, decidedAt: null }
 	);
 	doc.transact(() => {
-		m.set('status', s);
+		setAll(m, { status: s });
 		// Reopening clears the record, but a point never decided keeps its keys absent.
 		for (const [k, v] of Object.entries(record)) if (decided || m.has(k)) m.set(k, v);
 	}, origin);
@@ -188,7 +201,7 @@ export function setRouteVertices(doc: Y.Doc, id: string, vertices: Vec2[], origi
 	const v = routeVerticesSchema.parse(vertices) as Vec2[];
 	const m = maps(doc).routes.get(id);
 	if (!(m instanceof Y.Map)) return false;
-	doc.transact(() => m.set('vertices', v), origin);
+	doc.transact(() => setAll(m, { vertices: v }), origin);
 	return true;
 }
 
@@ -228,7 +241,7 @@ export function setZonePolygon(doc: Y.Doc, id: string, polygon: Vec2[], origin: 
 	const p = zonePolygonSchema.parse(polygon) as Vec2[];
 	const m = maps(doc).zones.get(id);
 	if (!(m instanceof Y.Map)) return false;
-	doc.transact(() => m.set('polygon', p), origin);
+	doc.transact(() => setAll(m, { polygon: p }), origin);
 	return true;
 }
 
