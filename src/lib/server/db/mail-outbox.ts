@@ -1,0 +1,17 @@
+import type { DB } from './index';
+
+/**
+ * The organisation's own outgoing mail: only rows its actions sent and marked for it
+ * (invitations). Personal mail (password resets, sign-up links, notes to an account's owner)
+ * is never listed here, whoever it went to.
+ */
+export function listForOrganisation(db: DB, organisationId: string, limit = 100) {
+	return db
+		.selectFrom('mail_outbox')
+		.select(['id', 'to_address', 'subject', 'body_text', 'status', 'error', 'created_at', 'sent_at'])
+		.where('organisation_id', '=', organisationId)
+		.where('audience', '=', 'organisation')
+		.orderBy('created_at', 'desc')
+		.limit(limit)
+		.execute();
+}
