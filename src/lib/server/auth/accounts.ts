@@ -56,26 +56,30 @@ export async function requestSignUp(
 		return;
 	}
 	const { token, hash } = newToken();
-	await db
-		.insertInto('sign_up_request')
-		.values({
-			email: input.email,
-			name: input.name,
-			organisation_name: input.organisationName,
-			password_hash: passwordHash,
-			token_hash: hash,
-			expires_at: new Date(Date.now() + SIGN_UP_TTL_MS)
-		})
-		.execute();
-	await mailer.queue(db, {
-		purpose: 'sign-up',
-		to: input.email,
-		subject: 'Finish creating your Spotface organisation',
-		text:
-			`Hello ${input.name},\n\nOpen this link within 24 hours to create ${input.organisationName} on Spotface ` +
-			`and sign in (it works once):\n\n${origin}/sign-up/confirm/${token}\n\n` +
-			`If it was not you, ignore this message; nothing is created.\n`
+	// One transaction, one commit: the same as the single insert above.
+	await db.transaction().execute(async (trx) => {
+		await trx
+			.insertInto('sign_up_request')
+			.values({
+				email: input.email,
+				name: input.name,
+				organisation_name: input.organisationName,
+				password_hash: passwordHash,
+				token_hash: hash,
+				expires_at: new Date(Date.now() + SIGN_UP_TTL_MS)
+			})
+			.execute();
+		await mailer.queue(trx, {
+			purpose: 'sign-up',
+			to: input.email,
+			subject: 'Finish creating your Spotface organisation',
+			text:
+				`Hello ${input.name},\n\nOpen this link within 24 hours to create ${input.organisationName} on Spotface ` +
+				`and sign in (it works once):\n\n${origin}/sign-up/confirm/${token}\n\n` +
+				`If it was not you, ignore this message; nothing is created.\n`
+		});
 	});
+	mailer.kick();
 }
 
 export function findUsableSignUp(db: DB, token: string) {
@@ -165,20 +169,24 @@ export async function requestPasswordReset(db: DB, mailer: Mailer, origin: strin
 		return;
 	}
 	const { token, hash } = newToken();
-	await db
-		.insertInto('password_reset')
-		.values({ user_id: user.id, token_hash: hash, expires_at: new Date(Date.now() + RESET_TTL_MS) })
-		.execute();
-	// Personal mail: never listed in any organisation's outbox.
-	await mailer.queue(db, {
-		purpose: 'password-reset',
-		to: user.email,
-		subject: 'Reset your Spotface password',
-		text:
-			`Hello ${user.name},\n\nSomeone asked to reset the password of your Spotface account.\n` +
-			`Open this link within one hour to choose a new password (it works once):\n\n` +
-			`${origin}/reset-password/${token}\n\nIf it was not you, ignore this message; your password stays as it is.\n`
+	// One transaction, one commit: the same as the single insert above.
+	await db.transaction().execute(async (trx) => {
+		await trx
+			.insertInto('password_reset')
+			.values({ user_id: user.id, token_hash: hash, expires_at: new Date(Date.now() + RESET_TTL_MS) })
+			.execute();
+		// Personal mail: never listed in any organisation's outbox.
+		await mailer.queue(trx, {
+			purpose: 'password-reset',
+			to: user.email,
+			subject: 'Reset your Spotface password',
+			text:
+				`Hello ${user.name},\n\nSomeone asked to reset the password of your Spotface account.\n` +
+				`Open this link within one hour to choose a new password (it works once):\n\n` +
+				`${origin}/reset-password/${token}\n\nIf it was not you, ignore this message; your password stays as it is.\n`
+		});
 	});
+	mailer.kick();
 }
 
 export async function findUsableReset(db: DB, token: string) {

@@ -25,6 +25,8 @@ export interface Mailer {
 	 * a message was written at all, for the callers that write one either way).
 	 */
 	queue(db: DB, m: OutgoingMail): Promise<void>;
+	/** Starts delivery now; `queue` does this itself except inside a transaction (call it after the commit). */
+	kick(): void;
 	/** Delivers every due message now; returns how many were tried. Also runs on a timer. */
 	deliverDue(): Promise<number>;
 	close(): void;
@@ -104,6 +106,11 @@ export function createMailer(opts: { db: DB; smtpUrl?: string; from: string; pol
 		return running;
 	}
 
+	// Not awaited: the caller's answer must not wait for (or reveal anything about) delivery.
+	function kick() {
+		if (transport) setImmediate(() => void deliverDue());
+	}
+
 	const timer = transport ? setInterval(() => void deliverDue(), opts.pollMs ?? 30_000) : null;
 	timer?.unref();
 
@@ -126,9 +133,9 @@ export function createMailer(opts: { db: DB; smtpUrl?: string; from: string; pol
 				console.warn(`[mail] SMTP_URL not set; a ${m.purpose} message stays queued in mail_outbox`);
 				return;
 			}
-			// Not awaited: the caller's answer must not wait for (or reveal anything about) delivery.
-			setImmediate(() => void deliverDue());
+			if (!db.isTransaction) kick();
 		},
+		kick,
 		deliverDue,
 		close() {
 			if (timer) clearInterval(timer);

@@ -4,6 +4,7 @@ import { parseForm, type FieldErrors } from '$lib/schemas/form';
 import { requestSignUp } from '$lib/server/auth/accounts';
 import { clientAddress } from '$lib/server/auth/client-address';
 import { context } from '$lib/server/context';
+import { afterResponse } from '$lib/server/after-response';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = ({ locals }) => {
@@ -22,7 +23,10 @@ export const actions: Actions = {
 			event.setHeaders({ 'retry-after': String(limit.retryAfterSec) });
 			return fail(429, { values: form.values, errors: { _: 'Too many sign-ups from here. Wait a while and try again.' } as FieldErrors });
 		}
-		await requestSignUp(handle.db, mailer, config.origin, form.data);
+		// Answer before looking the address up: a new and a known address get the same page at
+		// the same speed; the mail tells them apart, and only the mailbox owner reads it.
+		const input = form.data;
+		afterResponse('sign-up', () => requestSignUp(handle.db, mailer, config.origin, input));
 		return { sent: true, email: form.data.email };
 	}
 };
