@@ -3,7 +3,8 @@
 import type { DB } from '../../src/lib/server/db';
 import { Client } from './http';
 
-export async function signUpLink(db: DB, email: string, timeoutMs = 10_000): Promise<string> {
+/** The newest sign-up link mailed to `email` (other than `not`, to wait for a newer one). */
+export async function signUpLink(db: DB, email: string, not?: string, timeoutMs = 10_000): Promise<string> {
 	const end = Date.now() + timeoutMs;
 	while (Date.now() < end) {
 		const row = await db
@@ -14,7 +15,7 @@ export async function signUpLink(db: DB, email: string, timeoutMs = 10_000): Pro
 			.orderBy('created_at', 'desc')
 			.executeTakeFirst();
 		const m = row?.body_text.match(/https?:\/\/\S+\/sign-up\/confirm\/\S+/);
-		if (m) return new URL(m[0]).pathname;
+		if (m && new URL(m[0]).pathname !== not) return new URL(m[0]).pathname;
 		await new Promise((r) => setTimeout(r, 50));
 	}
 	throw new Error(`no sign-up link for ${email} within ${timeoutMs} ms`);

@@ -74,7 +74,7 @@ describe('sign-up and sign-in', () => {
 		await c.form('/sign-up', { organisationName: 'Race Org', name: 'Rae Race', email: 'race@northfield.test', password: 'race pass 123' });
 		const first = await signUpLink(t.db, 'race@northfield.test');
 		await c.form('/sign-up', { organisationName: 'Race Org Two', name: 'Rae Race', email: 'race@northfield.test', password: 'race pass 123' });
-		const second = await signUpLink(t.db, 'race@northfield.test');
+		const second = await signUpLink(t.db, 'race@northfield.test', first);
 		expect(second).not.toBe(first);
 		expect((await c.form(first, {})).status).toBe(303);
 		const res = await new Client(app.url).form(second, {});
