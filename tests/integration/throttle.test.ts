@@ -86,6 +86,30 @@ describe('sign-in slowdown', () => {
 		for (let i = 0; i < 3; i++) expect((await signIn(from('198.51.100.22'), OWNER, `typo again ${i}`)).status).toBe(400);
 	});
 
+	it('accepting an invitation with an existing account is slowed down the same way', async () => {
+		// Whoever holds an invitation link must not get an unthrottled password check.
+		const org = await t.db.insertInto('organisation').values({ name: 'Elm Works' }).returning('id').executeTakeFirstOrThrow();
+		const hash = await hashPassword('elm admin pass');
+		await t.db.insertInto('app_user').values([
+			{ id: 'u-elm', email: 'admin@elm-works.test', name: 'Elm Admin', password_hash: hash },
+			{ id: 'u-ash', email: 'ash@ash-yard.test', name: 'Ash Person', password_hash: await hashPassword('ash own pass 1') }
+		]).execute();
+		await t.db.insertInto('member').values({ organisation_id: org.id, user_id: 'u-elm', role: 'admin' }).execute();
+		const elm = from('198.51.100.50');
+		await elm.signIn('admin@elm-works.test', 'elm admin pass');
+		expect((await elm.json('POST', '/api/v1/invitations', { email: 'ash@ash-yard.test', role: 'viewer' })).status).toBe(201);
+		const row = await t.db.selectFrom('mail_outbox').select('body_text').where('to_address', '=', 'ash@ash-yard.test').executeTakeFirstOrThrow();
+		const path = new URL(row.body_text.match(/https?:\/\/\S+\/invite\/\S+/)![0]).pathname;
+
+		const guesser = from('203.0.113.16');
+		const statuses: number[] = [];
+		for (let i = 0; i < 5; i++) statuses.push((await guesser.form(path, { password: `guess ${i} for ash` })).status);
+		expect(statuses).toEqual([400, 400, 400, 400, 429]);
+		expect((await guesser.form(path, { password: 'ash own pass 1' })).status).toBe(429);
+		// The real person, elsewhere, accepts at once.
+		expect((await from('198.51.100.51').form(path, { password: 'ash own pass 1' })).status).toBe(303);
+	});
+
 	it('counters survive a restart of the app', async () => {
 		const stranger = from('203.0.113.13');
 		for (let i = 0; i < 2; i++) expect((await signIn(stranger, OWNER, `before restart ${i}`)).status).toBe(400);

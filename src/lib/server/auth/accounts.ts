@@ -21,6 +21,13 @@ export class AccountError extends Error {
 	}
 }
 
+/** A wrong password for an existing account (counts toward the sign-in slowdown). */
+export class WrongPasswordError extends AccountError {
+	constructor() {
+		super('That is not the password of your existing account.', 'password', 400);
+	}
+}
+
 function findUserByEmail(db: DB, email: string) {
 	return db
 		.selectFrom('app_user')
@@ -309,7 +316,7 @@ export async function acceptInvitation(db: DB, token: string, input: { name?: st
 	let userId: string;
 	if (user) {
 		if (!(await verifyPassword(user.password_hash, input.password))) {
-			throw new AccountError('That is not the password of your existing account.', 'password', 400);
+			throw new WrongPasswordError();
 		}
 		userId = user.id;
 	} else {

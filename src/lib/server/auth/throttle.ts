@@ -68,16 +68,22 @@ export interface Throttle {
 }
 
 export function createThrottle(pool: pg.Pool, s: ThrottleSettings = DEFAULT_THROTTLE): Throttle {
-	const make = (keyPrefix: string, points: number, duration: number) =>
-		new RateLimiterPostgres({
+	let sweeper = true;
+	const make = (keyPrefix: string, points: number, duration: number) => {
+		const limiter = new RateLimiterPostgres({
 			storeClient: pool,
 			storeType: 'pool',
 			tableName: 'rate_limit',
 			tableCreated: true, // created by a migration
+			// All limiters share the table: one of them deletes expired rows (every 5 minutes).
+			clearExpiredByTimeout: sweeper,
 			keyPrefix,
 			points,
 			duration
 		});
+		sweeper = false;
+		return limiter;
+	};
 	const scope = (name: string, free: number) => ({
 		free,
 		failures: make(`signin_fail_${name}`, 1_000_000, s.signInForgetSec),
