@@ -12,7 +12,7 @@ let mail: Awaited<ReturnType<typeof startTestMail>>;
 beforeAll(async () => {
 	t = await createTestDatabase();
 	mail = await startTestMail();
-	app = await startApp({ databaseUrl: t.url, env: { ...mail.env, RATE_LIMIT_SIGNIN_FREE_PER_ACCOUNT_ADDRESS: '5' } });
+	app = await startApp({ databaseUrl: t.url, env: { ...mail.env, RATE_LIMIT_SIGNIN_FREE_PER_ACCOUNT_ADDRESS: '5', RATE_LIMIT_SIGNUP_PER_ADDRESS: '100' } });
 });
 afterAll(async () => {
 	await app?.stop();

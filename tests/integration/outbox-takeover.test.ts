@@ -75,8 +75,10 @@ describe('account takeover through the outbox', () => {
 
 		// Step 3: nothing B can open shows the link or its token.
 		const outbox = await (await b.get('/settings/outbox')).text();
-		expect(outbox).toContain('/invite/'); // B's own invitation is listed…
-		expect(outbox).not.toContain('/reset-password/'); // …the reset is not
+		expect(outbox).toContain('You are invited to Birch Fans'); // B's own invitation is listed…
+		expect(outbox).toContain(VICTIM);
+		expect(outbox).not.toContain('/invite/'); // …without its link (the recipient's alone)…
+		expect(outbox).not.toContain('Reset your Spotface password'); // …and the reset not at all
 		for (const path of B_READS) {
 			for (const accept of ['text/html', 'application/json']) {
 				const res = await b.get(path, { accept });

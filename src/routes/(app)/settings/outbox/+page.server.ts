@@ -11,7 +11,7 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 			id: m.id,
 			to: m.to_address,
 			subject: m.subject,
-			text: m.body_text,
+			text: outbox.withoutPersonalLinks(m.body_text),
 			status: m.status,
 			error: m.error,
 			createdAt: new Date(m.created_at).toISOString(),
