@@ -3,7 +3,7 @@
 // tests read it. The folder holds every message, reset links included: it is private to its owner.
 import { SMTPServer } from 'smtp-server';
 import { simpleParser } from 'mailparser';
-import { mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { chmodSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { randomUUID } from 'node:crypto';
 
@@ -18,6 +18,7 @@ export interface CapturedMail {
 
 export async function startFakeSmtp(opts: { dir: string; port?: number; host?: string }) {
 	mkdirSync(opts.dir, { recursive: true, mode: 0o700 });
+	chmodSync(opts.dir, 0o700); // also when it existed before
 	const server = new SMTPServer({
 		authOptional: true,
 		disabledCommands: ['STARTTLS'],
