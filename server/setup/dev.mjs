@@ -8,7 +8,9 @@ const env = {
 	SPOTFACE_DEV: '1',
 	ORIGIN: 'http://127.0.0.1:5173',
 	SMTP_URL: process.env.SMTP_URL ?? 'smtp://127.0.0.1:2526',
-	MAIL_CAPTURE_DIR: process.env.SMTP_URL ? '' : '.data/mail'
+	MAIL_CAPTURE_DIR: process.env.SMTP_URL ? '' : '.data/mail',
+	// The Vite server listens on 127.0.0.1 only: the developer's mail viewer (/dev/mail) is safe here.
+	DEV_MAIL_VIEWER: process.env.DEV_MAIL_VIEWER ?? (process.env.SMTP_URL ? '0' : '1')
 };
 const kids = [];
 if (!process.env.SMTP_URL) kids.push(spawnChild('node', ['--import', 'tsx', 'server/setup/mail-server.ts'], { ...env, SMTP_FAKE_PORT: '2526' }));

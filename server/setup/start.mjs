@@ -21,6 +21,9 @@ const env = {
 if (!process.env.SMTP_URL) {
 	env.SMTP_URL = `smtp://127.0.0.1:${smtpPort}`;
 	env.MAIL_CAPTURE_DIR = '.data/mail';
+	// The developer's mail viewer (/dev/mail) shows every captured message, reset links included:
+	// on only while the app listens on loopback alone (and it answers loopback clients only).
+	env.DEV_MAIL_VIEWER = process.env.DEV_MAIL_VIEWER ?? (/^(127\.|localhost$|::1$)/.test(host) ? '1' : '0');
 	children.push(spawnChild('node', ['--import', 'tsx', 'server/setup/mail-server.ts'], { ...env, SMTP_FAKE_PORT: String(smtpPort) }));
 }
 const app = spawn('node', ['--import', 'tsx', 'server/index.ts'], {
@@ -44,7 +47,8 @@ function banner() {
 	log('  engineer@harrowgate.example  engineer');
 	log('  tech@harrowgate.example      technician');
 	log('  viewer@harrowgate.example    viewer');
-	if (env.MAIL_CAPTURE_DIR) log(`E-mail goes to a local test mail server; admins read it at ${env.ORIGIN}/settings/outbox`);
+	if (env.DEV_MAIL_VIEWER === '1') log(`E-mail goes to a local test mail server; read it on this machine at ${env.ORIGIN}/dev/mail`);
+	else if (env.MAIL_CAPTURE_DIR) log(`E-mail goes to a local test mail server, kept in ${env.MAIL_CAPTURE_DIR} (mail viewer off: HOST is not loopback)`);
 	log('Press Ctrl-C to stop the app and the database.');
 }
 

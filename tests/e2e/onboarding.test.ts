@@ -26,7 +26,7 @@ afterAll(async () => {
 });
 
 describe('onboarding in the browser', () => {
-	it('sign up, invite a technician, accept from the outbox, and see the technician view', async () => {
+	it('sign up by e-mail link, invite a technician who accepts from the mail, and see the technician view', async () => {
 		const p = admin.page;
 		await p.goto(`${app.url}/sign-up`);
 		await p.getByLabel('Organisation').fill('Kestrel Mill Services');
@@ -34,6 +34,11 @@ describe('onboarding in the browser', () => {
 		await p.getByLabel('E-mail').fill('rhiannon@kestrel.test');
 		await p.getByLabel('Password').fill('kestrel mill 2026');
 		await p.getByRole('button', { name: 'Create organisation' }).click();
+		// Sign-up finishes through the link mailed to the address.
+		await expect.poll(() => p.getByText('Check your e-mail').count()).toBe(1);
+		const welcome = mail.linkIn(await mail.waitFor('rhiannon@kestrel.test', /Finish creating/), '/sign-up/confirm/');
+		await p.goto(welcome);
+		await p.getByRole('button', { name: 'Create organisation and sign in' }).click();
 		await p.waitForURL(`${app.url}/?welcome=1`);
 		await expect.poll(() => p.getByTestId('role-badge').textContent()).toContain('admin');
 
@@ -50,11 +55,14 @@ describe('onboarding in the browser', () => {
 		await p.getByRole('button', { name: 'Send invitation' }).click();
 		await expect.poll(() => p.getByText('Invitation sent to owen@kestrel.test').count()).toBe(1);
 
-		// The admin opens the fake outbox and follows the link, as someone testing locally would.
-		await mail.waitFor('owen@kestrel.test');
+		// The admin's outbox lists the invitation and its delivery, but not the link: that is for
+		// the technician's mailbox alone.
+		const invitation = await mail.waitFor('owen@kestrel.test', /invited/);
 		await p.goto(`${app.url}/settings/outbox`);
-		const link = await p.locator('[data-testid=mail]').filter({ hasText: 'owen@kestrel.test' }).locator('a[href*="/invite/"]').getAttribute('href');
-		expect(link).toContain('/invite/');
+		const listed = p.locator('[data-testid=mail]').filter({ hasText: 'owen@kestrel.test' });
+		await expect.poll(() => listed.textContent()).toContain('link for the recipient only');
+		expect(await listed.locator('a[href*="/invite/"]').count()).toBe(0);
+		const link = mail.linkIn(invitation, '/invite/');
 
 		const q = tech.page;
 		await q.goto(link!);

@@ -1,6 +1,8 @@
 // A small HTTP client with a cookie jar, for driving pages, form actions and the API as a browser would.
 export class Client {
 	cookies = new Map<string, string>();
+	/** Sent with every request (e.g. x-forwarded-for, for an app started with ADDRESS_HEADER). */
+	headers: Record<string, string> = {};
 	constructor(readonly base: string) {}
 
 	private cookieHeader() {
@@ -20,6 +22,7 @@ export class Client {
 
 	async request(path: string, init: RequestInit = {}): Promise<Response> {
 		const headers = new Headers(init.headers);
+		for (const [k, v] of Object.entries(this.headers)) if (!headers.has(k)) headers.set(k, v);
 		if (this.cookies.size) headers.set('cookie', this.cookieHeader());
 		if (!headers.has('origin')) headers.set('origin', this.base);
 		const res = await fetch(this.base + path, { ...init, headers, redirect: 'manual' });

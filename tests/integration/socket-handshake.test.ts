@@ -3,6 +3,7 @@ import { io as connect, type Socket } from 'socket.io-client';
 import { createTestDatabase, type TestDatabase } from '../helpers/db';
 import { startApp, type RunningApp } from '../helpers/app';
 import { Client } from '../helpers/http';
+import { signUpAndConfirm } from '../helpers/accounts';
 
 let t: TestDatabase;
 let app: RunningApp;
@@ -12,7 +13,7 @@ beforeAll(async () => {
 	t = await createTestDatabase();
 	app = await startApp({ databaseUrl: t.url });
 	const c = new Client(app.url);
-	await c.form('/sign-up', { organisationName: 'Socket Works', name: 'Sol Admin', email: 'sol@socket.test', password: 'socket pass 123' });
+	await signUpAndConfirm(c, t.db, { organisationName: 'Socket Works', name: 'Sol Admin', email: 'sol@socket.test', password: 'socket pass 123' });
 	cookie = `spotface_session=${c.sessionCookie}`;
 });
 afterAll(async () => {

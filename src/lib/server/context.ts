@@ -3,11 +3,14 @@ import { env } from '$env/dynamic/private';
 import { createDb, type DbHandle } from './db';
 import { createAuth, type Auth } from './auth/lucia';
 import { createMailer, type Mailer } from './mail/mailer';
-import { createLimiter, type Limiter } from './rate-limit';
+import { createThrottle, DEFAULT_THROTTLE, type Throttle } from './auth/throttle';
 
 export interface AppConfig {
 	origin: string;
+	/** Where the local test mail server keeps every message (development only). */
 	mailCaptureDir: string | null;
+	/** DEV_MAIL_VIEWER=1: /dev/mail shows every captured message, reset links included. */
+	devMailViewer: boolean;
 	dataDir: string;
 }
 
@@ -16,12 +19,7 @@ interface Context {
 	auth: Auth;
 	mailer: Mailer;
 	config: AppConfig;
-	limits: {
-		signInPerAccount: Limiter;
-		signInPerAddress: Limiter;
-		resetPerAccount: Limiter;
-		resetPerAddress: Limiter;
-	};
+	throttle: Throttle;
 }
 
 let ctx: Context | null = null;
@@ -37,22 +35,29 @@ export function context(): Context {
 	if (!url) throw new Error('DATABASE_URL is not set (npm start sets it; see .env.example)');
 	const origin = env.ORIGIN ?? 'http://127.0.0.1:3000';
 	const handle = createDb(url, intEnv('DATABASE_POOL_SIZE', 10));
-	const window = intEnv('RATE_LIMIT_WINDOW_SEC', 900) * 1000;
+	const d = DEFAULT_THROTTLE;
 	ctx = {
 		handle,
 		auth: createAuth(handle.pool, { secure: origin.startsWith('https:') }),
-		mailer: createMailer({ smtpUrl: env.SMTP_URL || undefined, from: env.MAIL_FROM || 'Spotface <no-reply@spotface.local>' }),
+		mailer: createMailer({ db: handle.db, smtpUrl: env.SMTP_URL || undefined, from: env.MAIL_FROM || 'Spotface <no-reply@spotface.local>' }),
 		config: {
 			origin,
 			mailCaptureDir: env.MAIL_CAPTURE_DIR || null,
+			devMailViewer: env.DEV_MAIL_VIEWER === '1',
 			dataDir: env.DATA_DIR || '.data'
 		},
-		limits: {
-			signInPerAccount: createLimiter({ limit: intEnv('RATE_LIMIT_SIGNIN_PER_ACCOUNT', 10), windowMs: window }),
-			signInPerAddress: createLimiter({ limit: intEnv('RATE_LIMIT_SIGNIN_PER_ADDRESS', 50), windowMs: window }),
-			resetPerAccount: createLimiter({ limit: intEnv('RATE_LIMIT_RESET_PER_ACCOUNT', 5), windowMs: window }),
-			resetPerAddress: createLimiter({ limit: intEnv('RATE_LIMIT_RESET_PER_ADDRESS', 20), windowMs: window })
-		}
+		throttle: createThrottle(handle.pool, {
+			signInFreePerAccountAddress: intEnv('RATE_LIMIT_SIGNIN_FREE_PER_ACCOUNT_ADDRESS', d.signInFreePerAccountAddress),
+			signInFreePerAddress: intEnv('RATE_LIMIT_SIGNIN_FREE_PER_ADDRESS', d.signInFreePerAddress),
+			signInMaxDelaySec: intEnv('RATE_LIMIT_SIGNIN_MAX_DELAY_SEC', d.signInMaxDelaySec),
+			signInForgetSec: intEnv('RATE_LIMIT_SIGNIN_FORGET_SEC', d.signInForgetSec),
+			windowSec: intEnv('RATE_LIMIT_WINDOW_SEC', d.windowSec),
+			resetPerAccount: intEnv('RATE_LIMIT_RESET_PER_ACCOUNT', d.resetPerAccount),
+			resetPerAddress: intEnv('RATE_LIMIT_RESET_PER_ADDRESS', d.resetPerAddress),
+			signUpPerAccount: intEnv('RATE_LIMIT_SIGNUP_PER_ACCOUNT', d.signUpPerAccount),
+			signUpPerAddress: intEnv('RATE_LIMIT_SIGNUP_PER_ADDRESS', d.signUpPerAddress),
+			invitePerOrganisation: intEnv('RATE_LIMIT_INVITE_PER_ORGANISATION', d.invitePerOrganisation)
+		})
 	};
 	return ctx;
 }

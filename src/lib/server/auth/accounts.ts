@@ -9,6 +9,7 @@ import type { Mailer } from '../mail/mailer';
 
 export const RESET_TTL_MS = 60 * 60 * 1000; // one hour
 export const INVITE_TTL_MS = 7 * 24 * 60 * 60 * 1000; // seven days
+export const SIGN_UP_TTL_MS = 24 * 60 * 60 * 1000; // one day
 
 export class AccountError extends Error {
 	constructor(
@@ -20,6 +21,13 @@ export class AccountError extends Error {
 	}
 }
 
+/** A wrong password for an existing account (counts toward the sign-in slowdown). */
+export class WrongPasswordError extends AccountError {
+	constructor() {
+		super('That is not the password of your existing account.', 'password', 400);
+	}
+}
+
 function findUserByEmail(db: DB, email: string) {
 	return db
 		.selectFrom('app_user')
@@ -28,29 +36,106 @@ function findUserByEmail(db: DB, email: string) {
 		.executeTakeFirst();
 }
 
-export async function signUp(
+/**
+ * Sign-up answers the same whether or not the address has an account, so the form cannot be used
+ * to find out who uses Spotface: a new address gets a link that creates the organisation and
+ * the account (proving the address is theirs); the owner of a known address gets a note instead.
+ * Both hash the password and queue one message, so they also take the same time.
+ */
+export async function requestSignUp(
 	db: DB,
+	mailer: Mailer,
+	origin: string,
 	input: { organisationName: string; name: string; email: string; password: string }
 ) {
-	if (await findUserByEmail(db, input.email)) {
-		throw new AccountError('An account with this e-mail already exists. Sign in instead.', 'email', 409);
-	}
 	const passwordHash = await hashPassword(input.password);
-	return db.transaction().execute(async (trx) => {
-		const org = await trx
-			.insertInto('organisation')
-			.values({ name: input.organisationName })
-			.returning(['id', 'name'])
-			.executeTakeFirstOrThrow();
-		const userId = generateIdFromEntropySize(10);
+	const user = await findUserByEmail(db, input.email);
+	if (user) {
+		await mailer.queue(db, {
+			purpose: 'sign-up-existing',
+			to: user.email,
+			subject: 'Someone tried to sign up to Spotface with your address',
+			text:
+				`Hello ${user.name},\n\nSomeone tried to create a Spotface organisation with this e-mail address, ` +
+				`but you already have an account.\n\nSign in: ${origin}/sign-in\n` +
+				`Forgot your password? ${origin}/forgot-password\n\nIf it was not you, ignore this message; nothing was changed.\n`
+		});
+		return;
+	}
+	const { token, hash } = newToken();
+	// One transaction, one commit: the same as the single insert above.
+	await db.transaction().execute(async (trx) => {
 		await trx
-			.insertInto('app_user')
-			.values({ id: userId, email: input.email, name: input.name, password_hash: passwordHash })
+			.insertInto('sign_up_request')
+			.values({
+				email: input.email,
+				name: input.name,
+				organisation_name: input.organisationName,
+				password_hash: passwordHash,
+				token_hash: hash,
+				expires_at: new Date(Date.now() + SIGN_UP_TTL_MS)
+			})
 			.execute();
-		await trx.insertInto('member').values({ organisation_id: org.id, user_id: userId, role: 'admin' }).execute();
-		await record(trx, { organisationId: org.id, actorUserId: userId, action: 'organisation.created' });
-		return { userId, organisationId: org.id };
+		await mailer.queue(trx, {
+			purpose: 'sign-up',
+			to: input.email,
+			subject: 'Finish creating your Spotface organisation',
+			text:
+				`Hello ${input.name},\n\nOpen this link within 24 hours to create ${input.organisationName} on Spotface ` +
+				`and sign in (it works once):\n\n${origin}/sign-up/confirm/${token}\n\n` +
+				`If it was not you, ignore this message; nothing is created.\n`
+		});
 	});
+	mailer.kick();
+}
+
+export function findUsableSignUp(db: DB, token: string) {
+	return db
+		.selectFrom('sign_up_request')
+		.select(['email', 'name', 'organisation_name'])
+		.where('token_hash', '=', hashToken(token))
+		.where('used_at', 'is', null)
+		.where('expires_at', '>', new Date())
+		.executeTakeFirst();
+}
+
+/** Creates the organisation and its first admin from a sign-up link. Single use. */
+export async function confirmSignUp(db: DB, token: string) {
+	try {
+		return await db.transaction().execute(async (trx) => {
+			const req = await trx
+				.updateTable('sign_up_request')
+				.set({ used_at: new Date() })
+				.where('token_hash', '=', hashToken(token))
+				.where('used_at', 'is', null)
+				.where('expires_at', '>', new Date())
+				.returningAll()
+				.executeTakeFirst();
+			if (!req) throw new AccountError('This link has expired or was already used. Sign up again.', 'token', 410);
+			// Only the owner of the mailbox holds this link, so saying so reveals nothing.
+			if (await findUserByEmail(trx, req.email)) {
+				throw new AccountError('You already have an account with this e-mail address. Sign in instead.', 'token', 409);
+			}
+			const org = await trx
+				.insertInto('organisation')
+				.values({ name: req.organisation_name })
+				.returning(['id', 'name'])
+				.executeTakeFirstOrThrow();
+			const userId = generateIdFromEntropySize(10);
+			await trx
+				.insertInto('app_user')
+				.values({ id: userId, email: req.email, name: req.name, password_hash: req.password_hash })
+				.execute();
+			await trx.insertInto('member').values({ organisation_id: org.id, user_id: userId, role: 'admin' }).execute();
+			await record(trx, { organisationId: org.id, actorUserId: userId, action: 'organisation.created' });
+			return { userId, organisationId: org.id };
+		});
+	} catch (e) {
+		if ((e as { code?: string }).code === '23505') {
+			throw new AccountError('You already have an account with this e-mail address. Sign in instead.', 'token', 409);
+		}
+		throw e;
+	}
 }
 
 /** Returns the user and the organisation to open, or null for a wrong e-mail or password. */
@@ -72,24 +157,43 @@ export async function checkCredentials(db: DB, email: string, password: string) 
 	return { userId: user.id, organisationId: membership.organisation_id };
 }
 
+/**
+ * Does the same work whether or not the address has an account (one lookup, one queued message,
+ * nothing awaited from the mail server), so neither the answer nor its timing tells them apart.
+ */
 export async function requestPasswordReset(db: DB, mailer: Mailer, origin: string, email: string) {
 	const user = await findUserByEmail(db, email);
-	// Same answer whether or not the account exists.
-	if (!user) return;
+	if (!user) {
+		await mailer.queue(db, {
+			purpose: 'reset-no-account',
+			to: email,
+			subject: 'Reset your Spotface password',
+			text:
+				`Someone asked to reset the password of a Spotface account for this e-mail address, ` +
+				`but no account uses it.\n\nIf it was you, you may have signed up with another address; ` +
+				`or ask an admin of your organisation to invite you.\nIf it was not you, ignore this message.\n`
+		});
+		return;
+	}
 	const { token, hash } = newToken();
-	await db
-		.insertInto('password_reset')
-		.values({ user_id: user.id, token_hash: hash, expires_at: new Date(Date.now() + RESET_TTL_MS) })
-		.execute();
-	await mailer.send(db, {
-		organisationId: null,
-		to: user.email,
-		subject: 'Reset your Spotface password',
-		text:
-			`Hello ${user.name},\n\nSomeone asked to reset the password of your Spotface account.\n` +
-			`Open this link within one hour to choose a new password (it works once):\n\n` +
-			`${origin}/reset-password/${token}\n\nIf it was not you, ignore this message; your password stays as it is.\n`
+	// One transaction, one commit: the same as the single insert above.
+	await db.transaction().execute(async (trx) => {
+		await trx
+			.insertInto('password_reset')
+			.values({ user_id: user.id, token_hash: hash, expires_at: new Date(Date.now() + RESET_TTL_MS) })
+			.execute();
+		// Personal mail: never listed in any organisation's outbox.
+		await mailer.queue(trx, {
+			purpose: 'password-reset',
+			to: user.email,
+			subject: 'Reset your Spotface password',
+			text:
+				`Hello ${user.name},\n\nSomeone asked to reset the password of your Spotface account.\n` +
+				`Open this link within one hour to choose a new password (it works once):\n\n` +
+				`${origin}/reset-password/${token}\n\nIf it was not you, ignore this message; your password stays as it is.\n`
+		});
 	});
+	mailer.kick();
 }
 
 export async function findUsableReset(db: DB, token: string) {
@@ -169,7 +273,10 @@ export async function invite(
 		});
 		return row;
 	});
-	await mailer.send(db, {
+	// The inviting organisation's own mail: its admins may read it in their outbox.
+	await mailer.queue(db, {
+		purpose: 'invitation',
+		audience: 'organisation',
 		organisationId: input.organisationId,
 		to: input.email,
 		subject: `You are invited to ${input.organisationName} on Spotface`,
@@ -209,7 +316,7 @@ export async function acceptInvitation(db: DB, token: string, input: { name?: st
 	let userId: string;
 	if (user) {
 		if (!(await verifyPassword(user.password_hash, input.password))) {
-			throw new AccountError('That is not the password of your existing account.', 'password', 400);
+			throw new WrongPasswordError();
 		}
 		userId = user.id;
 	} else {

@@ -67,17 +67,44 @@ export interface AuditEventTable {
 	created_at: Generated<Timestamp>;
 }
 
+/** 'recipient': only the mailbox owner may see it; 'organisation': the sending organisation's outbox lists it. */
+export type MailAudience = 'recipient' | 'organisation';
+export type MailPurpose = 'invitation' | 'password-reset' | 'reset-no-account' | 'sign-up' | 'sign-up-existing' | 'other';
+
 export interface MailOutboxTable {
 	id: Generated<string>;
+	/** The organisation whose action sent the message; null for personal mail. */
 	organisation_id: string | null;
+	audience: Generated<MailAudience>;
+	purpose: Generated<MailPurpose>;
 	to_address: string;
 	subject: string;
 	body_text: string;
-	status: Generated<'queued' | 'sent' | 'failed'>;
+	status: Generated<'queued' | 'sending' | 'sent' | 'failed'>;
 	error: string | null;
 	attempts: Generated<number>;
-	created_at: Generated<Timestamp>;
+	created_at: Timestamp;
 	sent_at: Timestamp | null;
+	next_attempt_at: Timestamp;
+	claimed_at: Timestamp | null;
+}
+
+export interface SignUpRequestTable {
+	id: Generated<string>;
+	email: string;
+	name: string;
+	organisation_name: string;
+	password_hash: string;
+	token_hash: string;
+	expires_at: Timestamp;
+	used_at: Timestamp | null;
+	created_at: Generated<Timestamp>;
+}
+
+export interface RateLimitTable {
+	key: string;
+	points: Generated<number>;
+	expire: ColumnType<string | null, number | null, number | null>;
 }
 
 // --- Register: sites, areas, supply points, machines, bearings, media ---
@@ -273,6 +300,8 @@ export interface Database {
 	password_reset: PasswordResetTable;
 	audit_event: AuditEventTable;
 	mail_outbox: MailOutboxTable;
+	sign_up_request: SignUpRequestTable;
+	rate_limit: RateLimitTable;
 	site: SiteTable;
 	area: AreaTable;
 	supply_point: SupplyPointTable;

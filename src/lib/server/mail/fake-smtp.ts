@@ -1,8 +1,9 @@
 // A local SMTP server for development and tests: it accepts every message and keeps it as a
-// JSON file in a folder, where the admin outbox page and the tests read it.
+// JSON file in a folder, where the developer's mail viewer (/dev/mail, DEV_MAIL_VIEWER=1) and the
+// tests read it. The folder holds every message, reset links included: it is private to its owner.
 import { SMTPServer } from 'smtp-server';
 import { simpleParser } from 'mailparser';
-import { mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { chmodSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { randomUUID } from 'node:crypto';
 
@@ -16,7 +17,8 @@ export interface CapturedMail {
 }
 
 export async function startFakeSmtp(opts: { dir: string; port?: number; host?: string }) {
-	mkdirSync(opts.dir, { recursive: true });
+	mkdirSync(opts.dir, { recursive: true, mode: 0o700 });
+	chmodSync(opts.dir, 0o700); // also when it existed before
 	const server = new SMTPServer({
 		authOptional: true,
 		disabledCommands: ['STARTTLS'],
@@ -33,7 +35,7 @@ export async function startFakeSmtp(opts: { dir: string; port?: number; host?: s
 						subject: parsed.subject ?? '',
 						text: parsed.text ?? ''
 					};
-					writeFileSync(join(opts.dir, `${Date.now()}-${mail.id}.json`), JSON.stringify(mail, null, 2));
+					writeFileSync(join(opts.dir, `${Date.now()}-${mail.id}.json`), JSON.stringify(mail, null, 2), { mode: 0o600 });
 					callback();
 				})
 				.catch((err) => callback(err));

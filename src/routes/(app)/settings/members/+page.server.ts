@@ -36,7 +36,11 @@ export const actions: Actions = {
 		const viewer = requirePage(locals, 'member.invite', url);
 		const form = parseForm(await request.formData(), invitationCreateSchema);
 		if (!form.ok) return fail(400, { action: 'invite', values: form.values, errors: form.errors });
-		const { handle, mailer, config } = context();
+		const { handle, mailer, config, throttle } = context();
+		const limit = await throttle.request('invite', { organisation: viewer.organisationId });
+		if (!limit.ok) {
+			return fail(429, { action: 'invite', values: form.values, errors: { _: 'Too many invitations from this organisation. Wait a while and try again.' } as FieldErrors });
+		}
 		try {
 			await invite(handle.db, mailer, config.origin, {
 				organisationId: viewer.organisationId,

@@ -17,7 +17,13 @@ export const POST: RequestHandler = async ({ locals, request }) => {
 	if (v instanceof Response) return v;
 	const body = await readJson(request, invitationCreateSchema);
 	if (!body.ok) return body.response;
-	const { handle, mailer, config } = context();
+	const { handle, mailer, config, throttle } = context();
+	const limit = await throttle.request('invite', { organisation: v.organisationId });
+	if (!limit.ok) {
+		return problem(429, 'Too many invitations from this organisation. Wait a while and try again.', {
+			headers: { 'retry-after': String(limit.retryAfterSec) }
+		});
+	}
 	try {
 		const inv = await invite(handle.db, mailer, config.origin, {
 			organisationId: v.organisationId,
