@@ -26,6 +26,13 @@
 // A refused join or handshake emits 'refused' (reason, { kind: 'join' | 'session' }) and sets
 // status 'refused'; the provider then stays disconnected.
 //
+// Not stored for now: when the server cannot store an update yet (the database is away, or this
+// connection or board is over its byte budget) it answers `retry` with a wait. The provider keeps
+// the change, holds back every change that follows, and after the wait sends them all as one
+// merged update (waits grow while it keeps happening). `delayed` holds the server's reason
+// meanwhile ('delayed' event; null once everything held back is stored). The same goes for a
+// join or handshake the server could not complete for now: the provider connects again later.
+//
 // Offline: in the browser (offline !== false and indexedDB present) the document is kept in
 // IndexedDB through y-indexeddb, so the board opens and takes edits without a connection; on
 // reconnect the sync exchange merges both sides. IndexedDB is never used in Node unless asked.
@@ -43,12 +50,13 @@ import {
 	MESSAGE_AWARENESS,
 	MESSAGE_SYNC,
 	type BoardStateEvent,
+	type HandshakeErrorData,
 	type JoinReply,
 	type MessageAck
 } from './protocol';
 
 export type ProviderStatus = 'connecting' | 'connected' | 'disconnected' | 'refused';
-export type ProviderEvent = 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc';
+export type ProviderEvent = 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc' | 'delayed';
 
 export interface RefusalDetail {
 	/** 'update': a change was refused and rolled back; 'join': the board cannot be opened; 'session': sign in again. */
@@ -94,6 +102,8 @@ export class BoardProvider {
 	readOnly = false;
 	/** Why the board is read-only, as the server put it (null when writable). */
 	readOnlyReason: string | null = null;
+	/** Why changes are being held back for now, as the server put it (null when they are not). */
+	delayed: string | null = null;
 
 	#doc: Y.Doc;
 	#socket: Socket | null = null;
@@ -114,6 +124,11 @@ export class BoardProvider {
 	#awarenessTimer: ReturnType<typeof setTimeout> | null = null;
 	#awarenessLastSent = 0;
 	#reconnectTimer: ReturnType<typeof setTimeout> | null = null;
+	/** Updates the server could not store yet, with the local change count each covers. */
+	#held: Array<{ update: Uint8Array; upTo: number }> = [];
+	#heldTimer: ReturnType<typeof setTimeout> | null = null;
+	/** Consecutive "not now" answers (updates, joins, handshakes): the wait grows with them. */
+	#retries = 0;
 
 	constructor(opts: BoardProviderOptions) {
 		this.#opts = opts;
@@ -176,6 +191,7 @@ export class BoardProvider {
 		this.#wantConnected = false;
 		if (this.#reconnectTimer) clearTimeout(this.#reconnectTimer);
 		this.#reconnectTimer = null;
+		this.#clearHeld();
 		if (this.#socket?.connected && this.awareness.getLocalState() !== null) {
 			// Let the others see us go at once rather than after the server notices.
 			this.#send(encodeFrame(MESSAGE_AWARENESS, encodeAwarenessUpdate(this.awareness, [this.awareness.clientID], new Map())));
@@ -236,9 +252,10 @@ export class BoardProvider {
 		});
 		socket.on('connect', () => void this.#join(socket));
 		socket.on('connect_error', (err: Error & { data?: unknown }) => {
-			// A refusal by the handshake middleware (no or ended session) is final; network
-			// errors are retried by socket.io.
-			if (!socket.active) this.#refuse(err.message || 'unauthorised', 'session');
+			// A refusal by the handshake middleware (no or ended session) is final, unless the
+			// server says it could not check just now; network errors are retried by socket.io.
+			if (!socket.active && (err.data as HandshakeErrorData | undefined)?.retry) this.#reconnectLater(socket);
+			else if (!socket.active) this.#refuse(err.message || 'unauthorised', 'session');
 			else this.#setStatus('connecting');
 		});
 		socket.on('disconnect', (reason) => {
@@ -274,11 +291,19 @@ export class BoardProvider {
 			return;
 		}
 		if (socket !== this.#socket) return;
+		if (!reply.ok && reply.retry) {
+			socket.disconnect();
+			this.#reconnectLater(socket);
+			return;
+		}
 		if (!reply.ok) {
 			this.#refuse(reply.error, 'join');
 			socket.disconnect();
 			return;
 		}
+		this.#retries = 0;
+		// The sync step 2 below carries everything the server lacks, held-back changes included.
+		this.#clearHeld();
 		this.#joined = true;
 		this.#setReadOnly(reply.readOnly, reply.reason);
 		this.#setStatus('connected');
@@ -304,6 +329,55 @@ export class BoardProvider {
 		if (others.length) removeAwarenessStates(this.awareness, others, this);
 	}
 
+	/** The server could not take us just now: connect again after a growing wait. */
+	#reconnectLater(socket: Socket) {
+		this.#setStatus('connecting');
+		if (this.#reconnectTimer || this.#destroyed) return;
+		this.#reconnectTimer = setTimeout(() => {
+			this.#reconnectTimer = null;
+			if (this.#wantConnected && this.status !== 'refused' && socket === this.#socket && !socket.connected) socket.connect();
+		}, this.#backOff(1000));
+	}
+
+	#backOff(base: number) {
+		const wait = Math.min(15_000, base * 1.5 ** Math.min(this.#retries++, 8));
+		return wait * (0.8 + Math.random() * 0.4);
+	}
+
+	#setDelayed(reason: string | null) {
+		if (this.delayed === reason) return;
+		this.delayed = reason;
+		this.#emit('delayed', reason);
+	}
+
+	#clearHeld() {
+		if (this.#heldTimer) clearTimeout(this.#heldTimer);
+		this.#heldTimer = null;
+		this.#held = [];
+		this.#setUnsynced();
+		this.#setDelayed(null);
+	}
+
+	/** Not stored yet: keep it, hold back what follows, send all of it again after the wait. */
+	#hold(update: Uint8Array, upTo: number, reason: string, retryAfterMs: number) {
+		this.#held.push({ update, upTo });
+		this.#setUnsynced();
+		this.#setDelayed(reason);
+		if (this.#heldTimer) return;
+		const wait = Math.max(retryAfterMs, this.#backOff(250));
+		this.#heldTimer = setTimeout(() => {
+			this.#heldTimer = null;
+			if (!this.#joined || this.#held.length === 0) return; // the next join's sync step 2 carries them
+			const held = this.#held;
+			this.#held = [];
+			const upTo = Math.max(...held.map((h) => h.upTo));
+			const e = encoding.createEncoder();
+			encoding.writeVarUint(e, MESSAGE_SYNC);
+			syncProtocol.writeUpdate(e, held.length === 1 ? held[0].update : Y.mergeUpdates(held.map((h) => h.update)));
+			this.#sendUpdate(encoding.toUint8Array(e), upTo, held.map((h) => h.update));
+		}, wait);
+	}
+
 	#refuse(reason: string, kind: RefusalDetail['kind']) {
 		this.#wantConnected = false;
 		this.#setStatus('refused');
@@ -324,7 +398,9 @@ export class BoardProvider {
 	}
 
 	#setUnsynced() {
-		const n = Math.max(0, this.#localSeq - this.#ackedSeq);
+		// A held-back update may be older than a later one the server acknowledged.
+		const acked = this.#held.length ? Math.min(this.#ackedSeq, Math.min(...this.#held.map((h) => h.upTo)) - 1) : this.#ackedSeq;
+		const n = Math.max(0, this.#localSeq - acked);
 		if (n === this.unsynced) return;
 		this.unsynced = n;
 		this.#emit('unsynced', n);
@@ -337,16 +413,26 @@ export class BoardProvider {
 		else socket.emit(EVENT_MESSAGE, message);
 	}
 
-	/** Sends an update; when the server has stored it, local changes up to `upTo` are synced. */
-	#sendUpdate(message: Uint8Array, upTo: number) {
+	/**
+	 * Sends an update; when the server has stored it, local changes up to `upTo` are synced.
+	 * `updates`: the document update(s) in the message, kept in case the server cannot store them yet.
+	 */
+	#sendUpdate(message: Uint8Array, upTo: number, updates?: Uint8Array[]) {
 		const generation = this.#generation;
 		this.#send(message, (ack) => {
 			if (generation !== this.#generation || this.#destroyed) return;
 			if (ack?.ok) {
 				this.#ackedSeq = Math.max(this.#ackedSeq, upTo);
+				if (this.#held.length === 0 && !this.#heldTimer) {
+					this.#retries = 0;
+					this.#setDelayed(null);
+				}
 				this.#setUnsynced();
 			} else if (ack && 'refused' in ack) {
 				this.#rollBack(ack.refused, ack.readOnly);
+			} else if (ack && 'retry' in ack) {
+				const kept = updates ?? [updateOf(message)];
+				this.#hold(kept.length === 1 ? kept[0] : Y.mergeUpdates(kept), upTo, ack.retry, ack.retryAfterMs);
 			}
 		});
 	}
@@ -360,10 +446,15 @@ export class BoardProvider {
 			this.#setUnsynced();
 		}
 		if (!this.#joined) return; // sent with the next sync step 2
+		// While earlier changes wait to be sent again, this one waits with them.
+		if (this.#heldTimer) {
+			this.#held.push({ update, upTo: this.#localSeq });
+			return;
+		}
 		const e = encoding.createEncoder();
 		encoding.writeVarUint(e, MESSAGE_SYNC);
 		syncProtocol.writeUpdate(e, update);
-		this.#sendUpdate(encoding.toUint8Array(e), this.#localSeq);
+		this.#sendUpdate(encoding.toUint8Array(e), this.#localSeq, [update]);
 	};
 
 	#onAwarenessUpdate = ({ added, updated, removed }: { added: number[]; updated: number[]; removed: number[] }, origin: unknown) => {
@@ -430,6 +521,7 @@ export class BoardProvider {
 	#rollBack(reason: string, readOnly: boolean) {
 		this.#setReadOnly(readOnly || this.readOnly, readOnly ? reason : this.readOnlyReason);
 		this.#generation++;
+		this.#clearHeld();
 		const old = this.#doc;
 		old.off('update', this.#onDocUpdate);
 		const fresh = new Y.Doc();
@@ -466,6 +558,14 @@ export class BoardProvider {
 		this.#offline = store as unknown as OfflineStore;
 		await store.whenSynced;
 	}
+}
+
+/** The document update inside a sync message (step 2 or update). */
+function updateOf(message: Uint8Array): Uint8Array {
+	const d = decoding.createDecoder(message);
+	decoding.readVarUint(d); // MESSAGE_SYNC
+	decoding.readVarUint(d); // step 2 or update
+	return decoding.readVarUint8Array(d);
 }
 
 function encodeFrame(type: number, payload: Uint8Array) {
