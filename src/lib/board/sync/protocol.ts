@@ -22,7 +22,14 @@ export const MESSAGE_SYNC = 0;
 export const MESSAGE_AWARENESS = 1;
 
 export type JoinReply =
-	| { ok: true; readOnly: boolean; reason: string | null; user: { id: string; name: string } }
+	| {
+			ok: true;
+			readOnly: boolean;
+			reason: string | null;
+			user: { id: string; name: string };
+			/** The largest update the server stores; held-back changes are sent again in pieces under it. */
+			maxUpdateBytes?: number;
+	  }
 	/** `retry`: the board cannot be opened just now (the database is away); try again later. */
 	| { ok: false; error: string; retry?: boolean };
 

@@ -129,6 +129,8 @@ export class BoardProvider {
 	#heldTimer: ReturnType<typeof setTimeout> | null = null;
 	/** Consecutive "not now" answers (updates, joins, handshakes): the wait grows with them. */
 	#retries = 0;
+	/** The largest update the server takes (from the join); held-back changes are merged up to it. */
+	#maxUpdateBytes = Infinity;
 
 	constructor(opts: BoardProviderOptions) {
 		this.#opts = opts;
@@ -302,6 +304,7 @@ export class BoardProvider {
 			return;
 		}
 		this.#retries = 0;
+		this.#maxUpdateBytes = reply.maxUpdateBytes ?? Infinity;
 		// The sync step 2 below carries everything the server lacks, held-back changes included.
 		this.#clearHeld();
 		this.#joined = true;
@@ -359,8 +362,8 @@ export class BoardProvider {
 	}
 
 	/** Not stored yet: keep it, hold back what follows, send all of it again after the wait. */
-	#hold(update: Uint8Array, upTo: number, reason: string, retryAfterMs: number) {
-		this.#held.push({ update, upTo });
+	#hold(updates: Uint8Array[], upTo: number, reason: string, retryAfterMs: number) {
+		for (const update of updates) this.#held.push({ update, upTo });
 		this.#setUnsynced();
 		this.#setDelayed(reason);
 		if (this.#heldTimer) return;
@@ -370,11 +373,26 @@ export class BoardProvider {
 			if (!this.#joined || this.#held.length === 0) return; // the next join's sync step 2 carries them
 			const held = this.#held;
 			this.#held = [];
-			const upTo = Math.max(...held.map((h) => h.upTo));
-			const e = encoding.createEncoder();
-			encoding.writeVarUint(e, MESSAGE_SYNC);
-			syncProtocol.writeUpdate(e, held.length === 1 ? held[0].update : Y.mergeUpdates(held.map((h) => h.update)));
-			this.#sendUpdate(encoding.toUint8Array(e), upTo, held.map((h) => h.update));
+			// Merged in order, in pieces no larger than the server takes (a merge is never larger
+			// than its parts together); whatever is still too much comes back to be held again.
+			let group: typeof held = [];
+			let bytes = 0;
+			const flush = () => {
+				if (!group.length) return;
+				const updates = group.map((h) => h.update);
+				const e = encoding.createEncoder();
+				encoding.writeVarUint(e, MESSAGE_SYNC);
+				syncProtocol.writeUpdate(e, updates.length === 1 ? updates[0] : Y.mergeUpdates(updates));
+				this.#sendUpdate(encoding.toUint8Array(e), Math.max(...group.map((h) => h.upTo)), updates);
+				group = [];
+				bytes = 0;
+			};
+			for (const h of held) {
+				if (group.length && bytes + h.update.byteLength > this.#maxUpdateBytes - 64) flush();
+				group.push(h);
+				bytes += h.update.byteLength;
+			}
+			flush();
 		}, wait);
 	}
 
@@ -431,8 +449,7 @@ export class BoardProvider {
 			} else if (ack && 'refused' in ack) {
 				this.#rollBack(ack.refused, ack.readOnly);
 			} else if (ack && 'retry' in ack) {
-				const kept = updates ?? [updateOf(message)];
-				this.#hold(kept.length === 1 ? kept[0] : Y.mergeUpdates(kept), upTo, ack.retry, ack.retryAfterMs);
+				this.#hold(updates ?? [updateOf(message)], upTo, ack.retry, ack.retryAfterMs);
 			}
 		});
 	}

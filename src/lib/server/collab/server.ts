@@ -619,7 +619,13 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 					syncRequests: new TokenBucket(SYNC_REQUESTS_PER_SECOND, SYNC_REQUEST_BURST)
 				});
 				socket.join(roomOf(boardId));
-				reply({ ok: true, readOnly: access.readOnly, reason: access.reason, user: { id: viewer.userId, name: viewer.name } });
+				reply({
+					ok: true,
+					readOnly: access.readOnly,
+					reason: access.reason,
+					user: { id: viewer.userId, name: viewer.name },
+					maxUpdateBytes: options.maxUpdateBytes
+				});
 				socket.emit(EVENT_MESSAGE, syncStep1Message(room.doc));
 				if (room.awareness.states.size > 0) {
 					socket.emit(EVENT_MESSAGE, frame(MESSAGE_AWARENESS, encodeAwarenessUpdate(room.awareness, [...room.awareness.states.keys()])));
