@@ -166,7 +166,7 @@ describe('the database goes away under a running app', () => {
 			'health degraded with the parts that are down',
 			20_000
 		);
-		expect(down.body.status).toBe('degraded');
+		expect(down!.body.status).toBe('degraded');
 		// More edits while down, held back with the first.
 		during.push(edit(a), edit(b));
 		expect(alive()).toBe(true);
@@ -180,7 +180,7 @@ describe('the database goes away under a running app', () => {
 			'health ok after the restart',
 			30_000
 		);
-		expect(ok.body).toMatchObject({ status: 'ok', down: [] });
+		expect(ok!.body).toMatchObject({ status: 'ok', down: [] });
 		await settled('after the restart', 30_000);
 		expect(a.delayed).toBeNull();
 		const labels = readBoard(a.doc).points.map((p) => p.label);
