@@ -176,6 +176,19 @@ describe('limits on what a board takes', () => {
 		expect(await send(sockets.at(-1)!, bigUpdate(1024))).toEqual({ ok: true });
 	});
 
+	it('closes a connection that keeps asking for the whole board (each answer costs an encoding of it)', async () => {
+		const socket = await joinedSocket(f.boardIds[3]);
+		let reason = '';
+		socket.on('board:closed', (e: { reason: string }) => (reason = e.reason));
+		const step1 = encoding.createEncoder();
+		encoding.writeVarUint(step1, MESSAGE_SYNC);
+		syncProtocol.writeSyncStep1(step1, new Y.Doc());
+		const message = encoding.toUint8Array(step1);
+		for (let i = 0; i < 30 && socket.connected; i++) socket.emit(EVENT_MESSAGE, message, () => {});
+		await waitFor(() => !socket.connected, 'the socket closed');
+		expect(reason).toMatch(/sync requests per second/);
+	});
+
 	it('a flood on one board leaves people on another board working normally', async () => {
 		const boardId = f.boardIds[4];
 		const a = provider(boardId, engineer);

@@ -518,7 +518,9 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		switch (message.kind) {
 			case 'step1': {
 				// Each one costs an encoding of the board: the provider sends one per (re)join or rollback.
-				if (!member.syncRequests.take()) throw new Malformed(`more than ${SYNC_REQUESTS_PER_SECOND} sync requests per second`);
+				if (!member.syncRequests.take()) {
+					return closeSocket(member.socket, `more than ${SYNC_REQUESTS_PER_SECOND} sync requests per second (burst ${SYNC_REQUEST_BURST})`);
+				}
 				member.socket.emit(EVENT_MESSAGE, syncStep2Message(room.doc, message.stateVector));
 				return reply({ ok: true });
 			}
