@@ -148,6 +148,7 @@ describe('the database goes away under a running app', () => {
 
 	it('keeps edits made while the cluster is down, reports degraded, and recovers by itself', async () => {
 		const [a, b] = providers;
+		const viewerCookie = await sessionCookie(app.url, f.people.viewer);
 		cluster.stop('immediate');
 		// Edits while the database is away: the server cannot store them, the clients keep them.
 		const during = [edit(a), edit(b)];
@@ -170,6 +171,13 @@ describe('the database goes away under a running app', () => {
 		// More edits while down, held back with the first.
 		during.push(edit(a), edit(b));
 		expect(alive()).toBe(true);
+		// Someone opening the board now cannot be checked: told to wait, not refused.
+		const joiner = openProvider(app.url, f.boardIds[0], viewerCookie);
+		providers.push(joiner);
+		const joinerRefusals: string[] = [];
+		joiner.on('refused', (r: string) => joinerRefusals.push(r));
+		await waitFor(() => /handshake failed|join of board \S+ by .* failed/.test(app.output()), 'the join or handshake answered "try again"', 20_000);
+		expect(joiner.status).toBe('connecting');
 
 		cluster = startCluster({ dir: '.data/pg-outage', port, dbName: 'postgres', log: () => {} });
 		const ok = await waitFor(
@@ -187,11 +195,10 @@ describe('the database goes away under a running app', () => {
 		for (const l of made) expect(labels).toContain(l);
 		expect(alive()).toBe(true);
 
-		// And the board still works for a client that joins now.
-		const late = openProvider(app.url, f.boardIds[0], await sessionCookie(app.url, f.people.viewer));
-		providers.push(late);
-		await late.whenSynced();
-		expect(content(late.doc)).toEqual(content(a.doc));
+		// The one who tried to open the board during the outage gets in by itself.
+		await joiner.whenSynced();
+		expect(joinerRefusals).toEqual([]);
+		await waitFor(() => isDeepStrictEqual(content(joiner.doc), content(a.doc)), 'the late joiner has everything');
 		// Every lost connection was handled where it happened: the process-level last resort never fired.
 		expect(app.output()).not.toMatch(/Unhandled 'error' event|uncaught exception|unhandled rejection/i);
 	});

@@ -444,7 +444,9 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 			}
 		} catch (e) {
 			if (!(e instanceof StorageUnavailable) && !isConnectionError(e)) throw e;
-			// Not stored, not refused: the sender keeps the change and sends it again.
+			// Not stored, not refused: the sender keeps the change and sends it again. The shadow
+			// copy may hold it already; it is rebuilt from the room's document next time.
+			dropShadow(room);
 			log.warn(`[collab] could not store an update from ${who(member.socket)}: ${(e as Error).message}`);
 			return reply({
 				ok: false,
@@ -453,6 +455,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 			});
 		}
 		if (seq === null) {
+			dropShadow(room);
 			const reason = access?.reason ?? 'You no longer have access to this board.';
 			log.warn(`[collab] refused an update from ${who(member.socket)}: ${reason}`);
 			setReadOnly(member, true, reason);
@@ -465,6 +468,11 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		reply({ ok: true });
 		room.storedSinceCompaction++;
 		maybeCompact(room);
+	}
+
+	function dropShadow(room: BoardRoom) {
+		room.shadow?.destroy();
+		room.shadow = null;
 	}
 
 	/** The review decision the update would write, trying it on the room's shadow copy. */
