@@ -1,6 +1,25 @@
 // The production entry: one HTTP server that serves the built SvelteKit app and socket.io.
 import { createServer } from 'node:http';
 import { attachRealtime } from './realtime';
+import { isConnectionError } from '../src/lib/server/db-health';
+
+// Last resort: every database client has an 'error' listener (db-health.ts guardPool,
+// adapter-pool.ts, pg-listen.ts), so a lost connection should never get here. If one still
+// does (a library's client we do not know of), it is logged and the process carries on: the
+// pools drop broken connections by themselves. Anything else is a bug with unknown state
+// behind it: log it and exit, and let the supervisor (npm start, systemd, …) start afresh.
+function lastResort(kind: string) {
+	return (err: unknown) => {
+		if (isConnectionError(err)) {
+			console.error(`[process] ${kind} from a lost database connection, carrying on:`, (err as Error)?.message ?? err);
+			return;
+		}
+		console.error(`[process] ${kind}; exiting:`, err);
+		process.exit(1);
+	};
+}
+process.on('uncaughtException', lastResort('uncaught exception'));
+process.on('unhandledRejection', lastResort('unhandled rejection'));
 
 const host = process.env.HOST ?? '127.0.0.1';
 const port = Number(process.env.PORT ?? 3000);

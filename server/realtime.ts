@@ -9,9 +9,12 @@ import { createAdapter } from '@socket.io/postgres-adapter';
 import { attachCollab } from '../src/lib/server/collab/server';
 import { collabOptionsFromEnv, type CollabOptions } from '../src/lib/server/collab/config';
 import { createDb } from '../src/lib/server/db/index';
+import { guardPool, isConnectionError } from '../src/lib/server/db-health';
+import { adapterPool as guardedAdapterPool } from '../src/lib/server/collab/adapter-pool';
 import { createAuth } from '../src/lib/server/auth/lucia';
 import { viewerFromSession } from '../src/lib/server/auth/viewer';
 import type { Viewer } from '../src/lib/server/auth/lucia';
+import type { HandshakeErrorData } from '../src/lib/board/sync/protocol';
 
 export interface RealtimeOptions {
 	databaseUrl: string;
@@ -21,7 +24,7 @@ export interface RealtimeOptions {
 }
 
 export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
-	const handle = createDb(opts.databaseUrl, 10);
+	const handle = createDb(opts.databaseUrl, 10, 'live-board pool');
 	const auth = createAuth(handle.pool, { secure: opts.origin.startsWith('https:') });
 	const collabOptions = opts.collab ?? collabOptionsFromEnv(process.env);
 	const io = new Server(httpServer, {
@@ -40,10 +43,10 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
 	});
 	let adapterPool: pg.Pool | null = null;
 	if (collabOptions.cluster) {
-		adapterPool = new pg.Pool({ connectionString: opts.databaseUrl, max: 4 });
-		adapterPool.on('error', (err) => console.error('[realtime] adapter pool:', err.message));
+		adapterPool = guardPool(new pg.Pool({ connectionString: opts.databaseUrl, max: 4 }), 'adapter pool');
 		io.adapter(
-			createAdapter(adapterPool, {
+			// Its LISTEN client gets an error listener and is given back broken when lost (see adapter-pool.ts).
+			createAdapter(guardedAdapterPool(adapterPool), {
 				heartbeatInterval: 2000,
 				heartbeatTimeout: 6000,
 				errorHandler: (err) => console.error('[realtime] adapter:', err.message)
@@ -63,7 +66,10 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
 			next();
 		} catch (err) {
 			console.error('[realtime] handshake failed:', (err as Error).message);
-			next(new Error('unauthorised'));
+			// The session could not be checked (the database is away): not a refusal, try again.
+			const e = new Error(isConnectionError(err) ? 'the server cannot check the session just now' : 'unauthorised') as Error & { data?: HandshakeErrorData };
+			e.data = { retry: true };
+			next(e);
 		}
 	});
 

@@ -58,7 +58,7 @@ function ownToPostgres(path) {
 /**
  * Create (once) and start a cluster.
  * @param {{ dir: string, port: number, dbName: string, log?: (s: string) => void }} o
- * @returns {{ url: string, stop: () => void, bin: string }}
+ * @returns {{ url: string, stop: (mode?: 'fast' | 'immediate') => void, bin: string, psql: (sql: string, db?: string) => string }}
  */
 export function startCluster({ dir, port, dbName, log = console.log }) {
 	const bin = ensurePostgresInstalled(log);
@@ -131,9 +131,10 @@ export function startCluster({ dir, port, dbName, log = console.log }) {
 		url,
 		bin,
 		psql,
-		stop() {
+		/** mode: 'fast' (default) or 'immediate' (no shutdown checkpoint, as after a crash). */
+		stop(mode = 'fast') {
 			try {
-				pgExec(bin, 'pg_ctl', ['-D', data, '-m', 'fast', '-w', 'stop']);
+				pgExec(bin, 'pg_ctl', ['-D', data, '-m', mode, '-w', 'stop']);
 			} catch {}
 		}
 	};

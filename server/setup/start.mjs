@@ -26,19 +26,36 @@ if (!process.env.SMTP_URL) {
 	env.DEV_MAIL_VIEWER = process.env.DEV_MAIL_VIEWER ?? (/^(127\.|localhost$|::1$)/.test(host) ? '1' : '0');
 	children.push(spawnChild('node', ['--import', 'tsx', 'server/setup/mail-server.ts'], { ...env, SMTP_FAKE_PORT: String(smtpPort) }));
 }
-const app = spawn('node', ['--import', 'tsx', 'server/index.ts'], {
-	stdio: ['inherit', 'pipe', 'inherit'],
-	env: { ...process.env, ...env }
-});
-children.push(app);
+// The app runs as a child: if it exits unexpectedly it is started again (after 1 s, doubling to
+// 30 s while it keeps failing within a minute of starting); the database keeps running.
+let app = null;
 let announced = false;
-app.stdout.on('data', (chunk) => {
-	process.stdout.write(chunk);
-	if (!announced && String(chunk).includes('listening on')) {
-		announced = true;
-		banner();
-	}
-});
+let restarts = 0;
+function startApp() {
+	const child = spawn('node', ['--import', 'tsx', 'server/index.ts'], {
+		stdio: ['inherit', 'pipe', 'inherit'],
+		env: { ...process.env, ...env }
+	});
+	const started = Date.now();
+	app = child;
+	child.stdout.on('data', (chunk) => {
+		process.stdout.write(chunk);
+		if (!announced && String(chunk).includes('listening on')) {
+			announced = true;
+			banner();
+		}
+	});
+	child.on('exit', (code, signal) => {
+		if (stopping) return;
+		if (Date.now() - started > 60_000) restarts = 0;
+		const wait = Math.min(30_000, 1000 * 2 ** restarts++);
+		console.error(`The app exited unexpectedly (${signal ?? `code ${code}`}); starting it again in ${wait / 1000} s.`);
+		setTimeout(() => {
+			if (!stopping) startApp();
+		}, wait);
+	});
+}
+startApp();
 
 function banner() {
 	log(`Spotface is at ${env.ORIGIN}`);
@@ -57,7 +74,7 @@ function stop(code = 0) {
 	if (stopping) return;
 	stopping = true;
 	log('Stopping…');
-	for (const c of children) if (c.exitCode === null) c.kill('SIGTERM');
+	for (const c of [...children, app]) if (c && c.exitCode === null && c.signalCode === null) c.kill('SIGTERM');
 	setTimeout(() => {
 		cluster.stop();
 		log('Database stopped.');
@@ -66,9 +83,3 @@ function stop(code = 0) {
 }
 process.on('SIGINT', () => stop(0));
 process.on('SIGTERM', () => stop(0));
-app.on('exit', (code) => {
-	if (!stopping) {
-		console.error(`The app exited (code ${code}).`);
-		stop(code ?? 1);
-	}
-});

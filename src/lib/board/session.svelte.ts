@@ -22,7 +22,12 @@ export interface BoardSyncProvider {
 	readonly unsynced: number;
 	readonly readOnly: boolean;
 	readonly readOnlyReason?: string | null;
-	on(event: 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc' | 'set-aside' | 'overwritten', cb: (...args: any[]) => void): () => void;
+	/** Why the server is not storing changes just now (they are kept and sent again). */
+	readonly delayed?: string | null;
+	on(
+		event: 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc' | 'delayed' | 'set-aside' | 'overwritten',
+		cb: (...args: any[]) => void
+	): () => void;
 	/** Deletes offline copies kept from earlier refusals (once the tray is empty). */
 	forgetEarlierCopies?(): Promise<void>;
 	connect(): void;
@@ -37,6 +42,8 @@ export interface SyncState {
 	readOnly: boolean;
 	/** Why the server refused, when it said. */
 	reason: string | null;
+	/** Why changes are held back for now (kept on the device, sent again), when they are. */
+	delayed: string | null;
 }
 
 export interface BoardUser {
@@ -100,7 +107,7 @@ export class LiveBoard {
 	#snapshot = $state.raw<BoardSnapshot>({ points: [], routes: [], zones: [], scale: null });
 	#canUndo = $state(false);
 	#canRedo = $state(false);
-	#sync = $state<SyncState>({ status: 'local', synced: false, unsynced: 0, readOnly: false, reason: null });
+	#sync = $state<SyncState>({ status: 'local', synced: false, unsynced: 0, readOnly: false, reason: null, delayed: null });
 	#refusal = $state.raw<Refusal | null>(null);
 	#peers = $state.raw<Peer[]>([]);
 	#setAside = $state.raw<SetAsideEntry[]>([]);
@@ -140,10 +147,11 @@ export class LiveBoard {
 					synced: provider.synced,
 					unsynced: provider.unsynced,
 					readOnly: provider.readOnly,
-					reason: provider.readOnlyReason ?? this.#refusal?.reason ?? null
+					reason: provider.readOnlyReason ?? this.#refusal?.reason ?? null,
+					delayed: provider.delayed ?? null
 				};
 			};
-			for (const ev of ['status', 'synced', 'unsynced', 'readonly'] as const) this.#cleanup.push(provider.on(ev, () => read()));
+			for (const ev of ['status', 'synced', 'unsynced', 'readonly', 'delayed'] as const) this.#cleanup.push(provider.on(ev, () => read()));
 			this.#cleanup.push(
 				provider.on('refused', (reason, detail) => {
 					const d = detail as { kind?: Refusal['kind']; local?: boolean } | undefined;

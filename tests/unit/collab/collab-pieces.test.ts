@@ -1,11 +1,12 @@
 // The pure pieces of the live board server: the rate limiter, the configuration reader, the
-// update checks and the group-commit writer (with a stand-in store).
+// update checks, the group-commit writer (with a stand-in store) and the byte budgets.
 import { describe, expect, it } from 'vitest';
 import * as Y from 'yjs';
 import { TokenBucket } from '../../../src/lib/server/collab/rate-limit';
 import { collabOptionsFromEnv, DEFAULT_COLLAB_OPTIONS } from '../../../src/lib/server/collab/config';
 import { decodeUpdateStrict, isCoveredBy, isEmptyUpdate } from '../../../src/lib/server/collab/update-check';
-import { UpdateWriter } from '../../../src/lib/server/collab/writer';
+import { StorageUnavailable, UpdateWriter } from '../../../src/lib/server/collab/writer';
+import { ByteBucket, DocumentSize, spend } from '../../../src/lib/server/collab/budget';
 import type { PendingUpdate } from '../../../src/lib/server/collab/persistence';
 
 describe('TokenBucket', () => {
@@ -115,5 +116,123 @@ describe('UpdateWriter', () => {
 		}
 		expect(attempts).toBe(3);
 		expect(writer.stats.failures).toBe(2);
+	});
+});
+
+describe('UpdateWriter when the database stays away', () => {
+	const item = (n: number): PendingUpdate => ({ boardId: 'b', organisationId: 'o', userId: 'u', sessionId: 's', update: new Uint8Array([n]) });
+
+	it('gives up after its tries, rejects with StorageUnavailable, reports down and comes back up by probing', async () => {
+		let failing = true;
+		let attempts = 0;
+		let probes = 0;
+		const reports: string[] = [];
+		const writer = new UpdateWriter(
+			{
+				query: async () => {
+					probes++;
+					if (failing) throw new Error('connect ECONNREFUSED');
+					return {} as never;
+				}
+			},
+			500,
+			async (_db, items) => {
+				attempts++;
+				if (failing) throw new Error('connect ECONNREFUSED');
+				return items.map(() => 'seq1');
+			},
+			{ attempts: 2, baseDelayMs: 1, probeMs: 5 },
+			(_part, status) => reports.push(status)
+		);
+		const errors = console.error;
+		console.error = () => {};
+		try {
+			await expect(writer.enqueue(item(1))).rejects.toBeInstanceOf(StorageUnavailable);
+			expect(attempts).toBe(2);
+			expect(writer.down).toBe(true);
+			expect(reports).toEqual(['down']);
+			// Nothing else arrives; the writer notices by itself when the database is back.
+			await new Promise((r) => setTimeout(r, 30));
+			expect(probes).toBeGreaterThan(0);
+			expect(writer.down).toBe(true);
+			failing = false;
+			for (let i = 0; i < 100 && writer.down; i++) await new Promise((r) => setTimeout(r, 5));
+			expect(writer.down).toBe(false);
+			expect(reports.at(-1)).toBe('up');
+			await expect(writer.enqueue(item(2))).resolves.toBe('seq1');
+		} finally {
+			console.error = errors;
+			await writer.close();
+		}
+	});
+});
+
+describe('ByteBucket', () => {
+	it('lets a message through while not in debt, then waits until the debt is paid off', () => {
+		let t = 0;
+		const b = new ByteBucket(1000, 4000, () => t);
+		expect(spendOne(b, 3000)).toBe(0);
+		expect(spendOne(b, 3000)).toBe(0); // 1000 left: through, into debt (-2000)
+		expect(b.waitMs()).toBe(2001);
+		t += 1000;
+		expect(b.waitMs()).toBe(1001);
+		t += 1001;
+		expect(b.waitMs()).toBe(0);
+		// A single message larger than the burst passes on a full bucket.
+		t += 60_000;
+		expect(b.tokens).toBe(4000);
+		expect(spendOne(b, 100_000)).toBe(0);
+		expect(b.waitMs()).toBeGreaterThan(90_000);
+	});
+
+	function spendOne(b: ByteBucket, n: number) {
+		const w = b.waitMs();
+		if (w === 0) b.take(n);
+		return w;
+	}
+
+	it('spend charges both the connection and the board, and names the one in debt', () => {
+		let t = 0;
+		const socketA = new ByteBucket(100, 1000, () => t);
+		const socketB = new ByteBucket(100, 1000, () => t);
+		const board = new ByteBucket(100, 1500, () => t);
+		expect(spend(socketA, board, 1200)).toEqual({ ok: true });
+		const a = spend(socketA, board, 10);
+		expect(a.ok).toBe(false);
+		expect(!a.ok && a.who).toBe('connection');
+		// Another connection on the same board: the board still has 300 left.
+		expect(spend(socketB, board, 400)).toEqual({ ok: true });
+		const b = spend(socketB, board, 10);
+		expect(!b.ok && b.who).toBe('board');
+	});
+});
+
+describe('DocumentSize', () => {
+	it('keeps an upper bound and measures only near the limit', () => {
+		const doc = new Y.Doc();
+		doc.getText('t').insert(0, 'x'.repeat(1000));
+		const size = new DocumentSize();
+		const exact = size.measure(doc);
+		expect(exact).toBeGreaterThan(1000);
+		// Overwrites: the bound grows with every update, the document hardly.
+		for (let i = 0; i < 50; i++) {
+			const before = Y.encodeStateVector(doc);
+			doc.getMap('m').set('k', i);
+			size.grew(Y.encodeStateAsUpdate(doc, before).byteLength);
+		}
+		expect(size.bound).toBeGreaterThan(exact);
+		const real = Y.encodeStateAsUpdate(doc).byteLength;
+		expect(size.bound).toBeGreaterThanOrEqual(real);
+		expect(size.fits(doc, 10, real + 10)).toBe(true); // bound too high: measured, fits
+		expect(size.bound).toBe(real);
+		expect(size.fits(doc, 11, real + 10)).toBe(false);
+	});
+});
+
+describe('collab byte limits from the environment', () => {
+	it('reads them and refuses nonsense', () => {
+		const o = collabOptionsFromEnv({ COLLAB_MAX_UPDATE_BYTES: '2048', COLLAB_BOARD_BYTE_BURST: '4096', COLLAB_SOCKET_BYTES_PER_SECOND: '8192' });
+		expect([o.maxUpdateBytes, o.boardByteBurst, o.socketBytesPerSecond]).toEqual([2048, 4096, 8192]);
+		expect(() => collabOptionsFromEnv({ COLLAB_MAX_DOCUMENT_BYTES: '12' })).toThrow(/COLLAB_MAX_DOCUMENT_BYTES/);
 	});
 });

@@ -8,7 +8,9 @@
 //   server → client  'board:closed' { reason }                  sent just before the server closes the socket
 //
 // The server answers every message it receives from the client with an ack once it is done with
-// it; for an update that means "stored" (or refused, with the reason).
+// it; for an update that means "stored", refused for good (`refused`: the client rolls back), or
+// not stored for now (`retry`: the database is away or the sender is over its byte budget; the
+// client keeps the change and sends it again after `retryAfterMs`, merged with what followed).
 
 export const EVENT_JOIN = 'board:join';
 export const EVENT_MESSAGE = 'y';
@@ -20,10 +22,26 @@ export const MESSAGE_SYNC = 0;
 export const MESSAGE_AWARENESS = 1;
 
 export type JoinReply =
-	| { ok: true; readOnly: boolean; reason: string | null; user: { id: string; name: string } }
-	| { ok: false; error: string };
+	| {
+			ok: true;
+			readOnly: boolean;
+			reason: string | null;
+			user: { id: string; name: string };
+			/** The largest update the server stores; held-back changes are sent again in pieces under it. */
+			maxUpdateBytes?: number;
+	  }
+	/** `retry`: the board cannot be opened just now (the database is away); try again later. */
+	| { ok: false; error: string; retry?: boolean };
 
-export type MessageAck = { ok: true } | { ok: false; refused: string; readOnly: boolean };
+export type MessageAck =
+	| { ok: true }
+	| { ok: false; refused: string; readOnly: boolean }
+	| { ok: false; retry: string; retryAfterMs: number };
+
+/** Handshake refusals that are not final carry this in the error's `data`. */
+export interface HandshakeErrorData {
+	retry: boolean;
+}
 
 export interface BoardStateEvent {
 	readOnly: boolean;

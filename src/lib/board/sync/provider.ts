@@ -32,6 +32,13 @@
 // A refused join or handshake emits 'refused' (reason, { kind: 'join' | 'session' }) and sets
 // status 'refused'; the provider then stays disconnected.
 //
+// Not stored for now: when the server cannot store an update yet (the database is away, or this
+// connection or board is over its byte budget) it answers `retry` with a wait. The provider keeps
+// the change, holds back every change that follows, and after the wait sends them all as one
+// merged update (waits grow while it keeps happening). `delayed` holds the server's reason
+// meanwhile ('delayed' event; null once everything held back is stored). The same goes for a
+// join or handshake the server could not complete for now: the provider connects again later.
+//
 // Offline: in the browser (offline !== false and indexedDB present) the document is kept in
 // IndexedDB through y-indexeddb, so the board opens and takes edits without a connection; on
 // reconnect the sync exchange merges both sides. IndexedDB is never used in Node unless asked.
@@ -49,6 +56,7 @@ import {
 	MESSAGE_AWARENESS,
 	MESSAGE_SYNC,
 	type BoardStateEvent,
+	type HandshakeErrorData,
 	type JoinReply,
 	type MessageAck
 } from './protocol';
@@ -56,7 +64,7 @@ import { labelFor, reapply, unacceptedWork, type ChangeCheck, type SetAsideEntry
 import { OverwriteWatch, type OverwriteNotice } from './overwrites';
 
 export type ProviderStatus = 'connecting' | 'connected' | 'disconnected' | 'refused';
-export type ProviderEvent = 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc' | 'set-aside' | 'overwritten';
+export type ProviderEvent = 'status' | 'synced' | 'unsynced' | 'refused' | 'readonly' | 'doc' | 'delayed' | 'set-aside' | 'overwritten';
 export type { SetAsideEntry, OverwriteNotice, ChangeCheck };
 
 /** Origin of differences written again after a refusal: sent to the server, not undoable. */
@@ -139,6 +147,8 @@ export class BoardProvider {
 	readOnly = false;
 	/** Why the board is read-only, as the server put it (null when writable). */
 	readOnlyReason: string | null = null;
+	/** Why changes are being held back for now, as the server put it (null when they are not). */
+	delayed: string | null = null;
 
 	#doc: Y.Doc;
 	#socket: Socket | null = null;
@@ -171,6 +181,13 @@ export class BoardProvider {
 	 */
 	#accepted: Y.Doc | null = null;
 	#checkingLocal = false;
+	/** Updates the server could not store yet, with the local change count each covers. */
+	#held: Array<{ update: Uint8Array; upTo: number }> = [];
+	#heldTimer: ReturnType<typeof setTimeout> | null = null;
+	/** Consecutive "not now" answers (updates, joins, handshakes): the wait grows with them. */
+	#retries = 0;
+	/** The largest update the server takes (from the join); held-back changes are merged up to it. */
+	#maxUpdateBytes = Infinity;
 
 	constructor(opts: BoardProviderOptions) {
 		this.#opts = opts;
@@ -238,6 +255,7 @@ export class BoardProvider {
 		this.#wantConnected = false;
 		if (this.#reconnectTimer) clearTimeout(this.#reconnectTimer);
 		this.#reconnectTimer = null;
+		this.#clearHeld();
 		if (this.#socket?.connected && this.awareness.getLocalState() !== null) {
 			// Let the others see us go at once rather than after the server notices.
 			this.#send(encodeFrame(MESSAGE_AWARENESS, encodeAwarenessUpdate(this.awareness, [this.awareness.clientID], new Map())));
@@ -314,9 +332,10 @@ export class BoardProvider {
 		});
 		socket.on('connect', () => void this.#join(socket));
 		socket.on('connect_error', (err: Error & { data?: unknown }) => {
-			// A refusal by the handshake middleware (no or ended session) is final; network
-			// errors are retried by socket.io.
-			if (!socket.active) this.#refuse(err.message || 'unauthorised', 'session');
+			// A refusal by the handshake middleware (no or ended session) is final, unless the
+			// server says it could not check just now; network errors are retried by socket.io.
+			if (!socket.active && (err.data as HandshakeErrorData | undefined)?.retry) this.#reconnectLater(socket);
+			else if (!socket.active) this.#refuse(err.message || 'unauthorised', 'session');
 			else this.#setStatus('connecting');
 		});
 		socket.on('disconnect', (reason) => {
@@ -352,11 +371,20 @@ export class BoardProvider {
 			return;
 		}
 		if (socket !== this.#socket) return;
+		if (!reply.ok && reply.retry) {
+			socket.disconnect();
+			this.#reconnectLater(socket);
+			return;
+		}
 		if (!reply.ok) {
 			this.#refuse(reply.error, 'join');
 			socket.disconnect();
 			return;
 		}
+		this.#retries = 0;
+		this.#maxUpdateBytes = reply.maxUpdateBytes ?? Infinity;
+		// The sync step 2 below carries everything the server lacks, held-back changes included.
+		this.#clearHeld();
 		this.#joined = true;
 		this.#setReadOnly(reply.readOnly, reply.reason);
 		this.#setStatus('connected');
@@ -382,6 +410,70 @@ export class BoardProvider {
 		if (others.length) removeAwarenessStates(this.awareness, others, this);
 	}
 
+	/** The server could not take us just now: connect again after a growing wait. */
+	#reconnectLater(socket: Socket) {
+		this.#setStatus('connecting');
+		if (this.#reconnectTimer || this.#destroyed) return;
+		this.#reconnectTimer = setTimeout(() => {
+			this.#reconnectTimer = null;
+			if (this.#wantConnected && this.status !== 'refused' && socket === this.#socket && !socket.connected) socket.connect();
+		}, this.#backOff(1000));
+	}
+
+	#backOff(base: number) {
+		const wait = Math.min(15_000, base * 1.5 ** Math.min(this.#retries++, 8));
+		return wait * (0.8 + Math.random() * 0.4);
+	}
+
+	#setDelayed(reason: string | null) {
+		if (this.delayed === reason) return;
+		this.delayed = reason;
+		this.#emit('delayed', reason);
+	}
+
+	#clearHeld() {
+		if (this.#heldTimer) clearTimeout(this.#heldTimer);
+		this.#heldTimer = null;
+		this.#held = [];
+		this.#setUnsynced();
+		this.#setDelayed(null);
+	}
+
+	/** Not stored yet: keep it, hold back what follows, send all of it again after the wait. */
+	#hold(updates: Uint8Array[], upTo: number, reason: string, retryAfterMs: number) {
+		for (const update of updates) this.#held.push({ update, upTo });
+		this.#setUnsynced();
+		this.#setDelayed(reason);
+		if (this.#heldTimer) return;
+		const wait = Math.max(retryAfterMs, this.#backOff(250));
+		this.#heldTimer = setTimeout(() => {
+			this.#heldTimer = null;
+			if (!this.#joined || this.#held.length === 0) return; // the next join's sync step 2 carries them
+			const held = this.#held;
+			this.#held = [];
+			// Merged in order, in pieces no larger than the server takes (a merge is never larger
+			// than its parts together); whatever is still too much comes back to be held again.
+			let group: typeof held = [];
+			let bytes = 0;
+			const flush = () => {
+				if (!group.length) return;
+				const updates = group.map((h) => h.update);
+				const e = encoding.createEncoder();
+				encoding.writeVarUint(e, MESSAGE_SYNC);
+				syncProtocol.writeUpdate(e, updates.length === 1 ? updates[0] : Y.mergeUpdates(updates));
+				this.#sendUpdate(encoding.toUint8Array(e), Math.max(...group.map((h) => h.upTo)), updates);
+				group = [];
+				bytes = 0;
+			};
+			for (const h of held) {
+				if (group.length && bytes + h.update.byteLength > this.#maxUpdateBytes - 64) flush();
+				group.push(h);
+				bytes += h.update.byteLength;
+			}
+			flush();
+		}, wait);
+	}
+
 	#refuse(reason: string, kind: RefusalDetail['kind']) {
 		this.#wantConnected = false;
 		this.#setStatus('refused');
@@ -402,7 +494,9 @@ export class BoardProvider {
 	}
 
 	#setUnsynced() {
-		const n = Math.max(0, this.#localSeq - this.#ackedSeq);
+		// A held-back update may be older than a later one the server acknowledged.
+		const acked = this.#held.length ? Math.min(this.#ackedSeq, Math.min(...this.#held.map((h) => h.upTo)) - 1) : this.#ackedSeq;
+		const n = Math.max(0, this.#localSeq - acked);
 		if (n === this.unsynced) return;
 		this.unsynced = n;
 		this.#emit('unsynced', n);
@@ -415,17 +509,26 @@ export class BoardProvider {
 		else socket.emit(EVENT_MESSAGE, message);
 	}
 
-	/** Sends an update; when the server has stored it, local changes up to `upTo` are synced. */
-	#sendUpdate(message: Uint8Array, upTo: number) {
+	/**
+	 * Sends an update; when the server has stored it, local changes up to `upTo` are synced.
+	 * `updates`: the document update(s) in the message, kept in case the server cannot store them yet.
+	 */
+	#sendUpdate(message: Uint8Array, upTo: number, updates?: Uint8Array[]) {
 		const generation = this.#generation;
 		this.#send(message, (ack) => {
 			if (generation !== this.#generation || this.#destroyed) return;
 			if (ack?.ok) {
 				this.#refusalStreak = 0;
 				this.#ackedSeq = Math.max(this.#ackedSeq, upTo);
+				if (this.#held.length === 0 && !this.#heldTimer) {
+					this.#retries = 0;
+					this.#setDelayed(null);
+				}
 				this.#setUnsynced();
 			} else if (ack && 'refused' in ack) {
 				this.#rollBack(ack.refused, ack.readOnly);
+			} else if (ack && 'retry' in ack) {
+				this.#hold(updates ?? [updateOf(message)], upTo, ack.retry, ack.retryAfterMs);
 			}
 		});
 	}
@@ -450,10 +553,15 @@ export class BoardProvider {
 			this.#setUnsynced();
 		}
 		if (!this.#joined) return; // sent with the next sync step 2
+		// While earlier changes wait to be sent again, this one waits with them.
+		if (this.#heldTimer) {
+			this.#held.push({ update, upTo: this.#localSeq });
+			return;
+		}
 		const e = encoding.createEncoder();
 		encoding.writeVarUint(e, MESSAGE_SYNC);
 		syncProtocol.writeUpdate(e, update);
-		this.#sendUpdate(encoding.toUint8Array(e), this.#localSeq);
+		this.#sendUpdate(encoding.toUint8Array(e), this.#localSeq, [update]);
 	};
 
 	#onAwarenessUpdate = ({ added, updated, removed }: { added: number[]; updated: number[]; removed: number[] }, origin: unknown) => {
@@ -582,6 +690,7 @@ export class BoardProvider {
 		this.#setReadOnly(readOnly || this.readOnly, readOnly ? reason : this.readOnlyReason);
 		this.#generation++;
 		this.#refusalStreak++;
+		this.#clearHeld();
 		const old = this.#doc;
 		old.off('update', this.#onDocUpdate);
 		// A second refusal before the first was dealt with: compare with the oldest copy.
@@ -629,6 +738,14 @@ export class BoardProvider {
 		this.#offline = store as unknown as OfflineStore;
 		await store.whenSynced;
 	}
+}
+
+/** The document update inside a sync message (step 2 or update). */
+function updateOf(message: Uint8Array): Uint8Array {
+	const d = decoding.createDecoder(message);
+	decoding.readVarUint(d); // MESSAGE_SYNC
+	decoding.readVarUint(d); // step 2 or update
+	return decoding.readVarUint8Array(d);
 }
 
 function encodeFrame(type: number, payload: Uint8Array) {

@@ -21,6 +21,17 @@ export interface CollabOptions {
 	sessionCheckMs: number;
 	/** Keep rooms in step across processes through the socket.io PostgreSQL adapter. */
 	cluster: boolean;
+	/** Largest single document update; a bigger one is refused (not stored) with the reason. */
+	maxUpdateBytes: number;
+	/** A board's document may not grow beyond this (encoded); growth beyond is refused. */
+	maxDocumentBytes: number;
+	/** Bytes of updates and presence per second a socket may send on average... */
+	socketBytesPerSecond: number;
+	/** ...and in a burst. Over it, updates are answered "not stored yet, send again later". */
+	socketByteBurst: number;
+	/** The same for all sockets of one board together (per server process). */
+	boardBytesPerSecond: number;
+	boardByteBurst: number;
 }
 
 export const DEFAULT_COLLAB_OPTIONS: CollabOptions = {
@@ -31,7 +42,20 @@ export const DEFAULT_COLLAB_OPTIONS: CollabOptions = {
 	compactEvery: 200,
 	catchUpMs: 10_000,
 	sessionCheckMs: 30_000,
-	cluster: true
+	cluster: true,
+	// A real board (1,000 points with notes, routes and zones) encodes to a few hundred KB, and
+	// a technician's edits come to a few KB per second at most (a point dragged at 60 frames a
+	// second is about 6 KB/s). A day of offline work arrives as one update, well under 512 KB,
+	// and passes on a quiet connection whatever its size (see ByteBucket). 8 MB is twenty
+	// times the largest real board; a board in memory takes several times its encoded size.
+	// Per board, four busy people fit in 128 KB/s; a flood from one connection is held to
+	// 64 KB/s, where it costs the server little and other boards nothing.
+	maxUpdateBytes: 512 * 1024,
+	maxDocumentBytes: 8 * 1024 * 1024,
+	socketBytesPerSecond: 64 * 1024,
+	socketByteBurst: 256 * 1024,
+	boardBytesPerSecond: 128 * 1024,
+	boardByteBurst: 512 * 1024
 };
 
 function int(raw: string | undefined, fallback: number, min: number, name: string) {
@@ -51,6 +75,12 @@ export function collabOptionsFromEnv(env: Record<string, string | undefined>): C
 		compactEvery: int(env.COLLAB_COMPACT_EVERY, d.compactEvery, 1, 'COLLAB_COMPACT_EVERY'),
 		catchUpMs: int(env.COLLAB_CATCH_UP_MS, d.catchUpMs, 0, 'COLLAB_CATCH_UP_MS'),
 		sessionCheckMs: int(env.COLLAB_SESSION_CHECK_MS, d.sessionCheckMs, 0, 'COLLAB_SESSION_CHECK_MS'),
-		cluster: env.COLLAB_CLUSTER === undefined ? d.cluster : !['0', 'false', 'off'].includes(env.COLLAB_CLUSTER)
+		cluster: env.COLLAB_CLUSTER === undefined ? d.cluster : !['0', 'false', 'off'].includes(env.COLLAB_CLUSTER),
+		maxUpdateBytes: int(env.COLLAB_MAX_UPDATE_BYTES, d.maxUpdateBytes, 1024, 'COLLAB_MAX_UPDATE_BYTES'),
+		maxDocumentBytes: int(env.COLLAB_MAX_DOCUMENT_BYTES, d.maxDocumentBytes, 1024, 'COLLAB_MAX_DOCUMENT_BYTES'),
+		socketBytesPerSecond: int(env.COLLAB_SOCKET_BYTES_PER_SECOND, d.socketBytesPerSecond, 1024, 'COLLAB_SOCKET_BYTES_PER_SECOND'),
+		socketByteBurst: int(env.COLLAB_SOCKET_BYTE_BURST, d.socketByteBurst, 1024, 'COLLAB_SOCKET_BYTE_BURST'),
+		boardBytesPerSecond: int(env.COLLAB_BOARD_BYTES_PER_SECOND, d.boardBytesPerSecond, 1024, 'COLLAB_BOARD_BYTES_PER_SECOND'),
+		boardByteBurst: int(env.COLLAB_BOARD_BYTE_BURST, d.boardByteBurst, 1024, 'COLLAB_BOARD_BYTE_BURST')
 	};
 }

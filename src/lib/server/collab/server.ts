@@ -29,8 +29,11 @@ import {
 } from '../../board/sync/protocol';
 import { loadBoardAccess, type BoardViewer } from './access';
 import { compact, loadInto, readMissing } from './persistence';
-import { UpdateWriter } from './writer';
+import { StorageUnavailable, UpdateWriter } from './writer';
 import { TokenBucket } from './rate-limit';
+import { ByteBucket, DocumentSize, kib, spend } from './budget';
+import { listenForever } from './pg-listen';
+import { isConnectionError } from '../db-health';
 import { catchUpShadow, decodeUpdateStrict, isCoveredBy, isEmptyUpdate, reviewDecisionIn } from './update-check';
 import { can } from '../auth/guard';
 import type { CollabOptions } from './config';
@@ -47,6 +50,11 @@ const ORIGIN_LEAVE = 'leave';
 /** Awareness: at most this many client ids per socket and this much JSON per state. */
 const MAX_AWARENESS_CLIENTS = 4;
 const MAX_AWARENESS_STATE_CHARS = 16_000;
+/** Sync requests (step 1) a socket may send: each costs the server an encoding of the board. */
+const SYNC_REQUESTS_PER_SECOND = 2;
+const SYNC_REQUEST_BURST = 10;
+/** Wait suggested to a sender while the database is away. */
+const RETRY_AFTER_OUTAGE_MS = 2000;
 
 interface RoomMember {
 	socket: Socket;
@@ -54,6 +62,9 @@ interface RoomMember {
 	readOnly: boolean;
 	reason: string | null;
 	clientIds: Set<number>;
+	/** Bytes of updates and presence (budget.ts). */
+	bytes: ByteBucket;
+	syncRequests: TokenBucket;
 }
 
 class BoardRoom {
@@ -73,8 +84,15 @@ class BoardRoom {
 	early: Array<{ seq: string; update: Uint8Array }> = [];
 	/** A copy of the document to try updates on before they are accepted (see reviewDecisionIn). */
 	shadow: Y.Doc | null = null;
+	/** Bytes of updates all sockets of the board may send here (budget.ts). */
+	bytes: ByteBucket;
+	readonly size = new DocumentSize();
 
-	constructor(readonly id: string) {
+	constructor(
+		readonly id: string,
+		options: CollabOptions
+	) {
+		this.bytes = new ByteBucket(options.boardBytesPerSecond, options.boardByteBurst);
 		// The server is not a participant: no presence of its own.
 		this.awareness.setLocalState(null);
 	}
@@ -209,7 +227,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 				await existing.ready;
 				return existing;
 			}
-			const room = new BoardRoom(boardId);
+			const room = new BoardRoom(boardId, options);
 			rooms.set(boardId, room);
 			wireAwareness(room);
 			room.ready = (async () => {
@@ -219,6 +237,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 				for (const s of loaded.seqs) room.seen.add(s);
 				room.snapshotSeq = loaded.snapshotSeq;
 				for (const { seq, update } of room.early.splice(0)) applyRelayed(room, seq, update);
+				room.size.measure(room.doc);
 				room.state = 'ready';
 				if (otherProcesses() > 0) io.serverSideEmit(RELAY_PRESENCE_REQUEST, boardId);
 				log.info(
@@ -363,6 +382,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 	/** After storage: into the document, out to the room here and in the other processes. */
 	function publishStored(room: BoardRoom, seq: string, update: Uint8Array, exceptSocket: string | null) {
 		room.seen.add(seq);
+		room.size.grew(update.byteLength);
 		try {
 			Y.applyUpdate(room.doc, update, ORIGIN_STORAGE);
 		} catch (e) {
@@ -382,6 +402,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 	function applyRelayed(room: BoardRoom, seq: string, update: Uint8Array) {
 		if (room.seen.has(seq)) return;
 		room.seen.add(seq);
+		room.size.grew(update.byteLength);
 		try {
 			Y.applyUpdate(room.doc, update, ORIGIN_RELAY);
 		} catch (e) {
@@ -408,29 +429,50 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 			sessionId: member.viewer.sessionId,
 			update
 		};
-		let seq = member.readOnly ? null : await writer.enqueue(item);
-		if (seq === null) {
-			// Refused by the stored state (or known read-only): ask afresh why, in case the
-			// member's role or the survey changed since the join.
-			const access = await loadBoardAccess(db, member.viewer, room.id);
-			if (access && !access.readOnly && member.readOnly) {
-				setReadOnly(member, false, null);
-				seq = await writer.enqueue(item);
-			}
+		let seq: string | null;
+		let access: Awaited<ReturnType<typeof loadBoardAccess>> | undefined;
+		try {
+			seq = member.readOnly ? null : await writer.enqueue(item);
 			if (seq === null) {
-				const reason = access?.reason ?? 'You no longer have access to this board.';
-				log.warn(`[collab] refused an update from ${who(member.socket)}: ${reason}`);
-				setReadOnly(member, true, reason);
-				reply({ ok: false, refused: reason, readOnly: true });
-				if (!access) closeSocket(member.socket, 'access to the board was withdrawn');
-				return;
+				// Refused by the stored state (or known read-only): ask afresh why, in case the
+				// member's role or the survey changed since the join.
+				access = await loadBoardAccess(db, member.viewer, room.id);
+				if (access && !access.readOnly && member.readOnly) {
+					setReadOnly(member, false, null);
+					seq = await writer.enqueue(item);
+				}
 			}
+		} catch (e) {
+			if (!(e instanceof StorageUnavailable) && !isConnectionError(e)) throw e;
+			// Not stored, not refused: the sender keeps the change and sends it again. The shadow
+			// copy may hold it already; it is rebuilt from the room's document next time.
+			dropShadow(room);
+			log.warn(`[collab] could not store an update from ${who(member.socket)}: ${(e as Error).message}`);
+			return reply({
+				ok: false,
+				retry: 'The server cannot save changes just now. They are kept on this device and sent again automatically.',
+				retryAfterMs: RETRY_AFTER_OUTAGE_MS
+			});
+		}
+		if (seq === null) {
+			dropShadow(room);
+			const reason = access?.reason ?? 'You no longer have access to this board.';
+			log.warn(`[collab] refused an update from ${who(member.socket)}: ${reason}`);
+			setReadOnly(member, true, reason);
+			reply({ ok: false, refused: reason, readOnly: true });
+			if (!access) closeSocket(member.socket, 'access to the board was withdrawn');
+			return;
 		}
 		if (room.state === 'gone') return reply({ ok: true });
 		publishStored(room, seq, update, member.socket.id);
 		reply({ ok: true });
 		room.storedSinceCompaction++;
 		maybeCompact(room);
+	}
+
+	function dropShadow(room: BoardRoom) {
+		room.shadow?.destroy();
+		room.shadow = null;
 	}
 
 	/** The review decision the update would write, trying it on the room's shadow copy. */
@@ -457,6 +499,24 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		return decision;
 	}
 
+	/** The answer to an update over a byte budget; logged once per burst, not per message. */
+	function overBudget(room: BoardRoom, member: RoomMember, whose: 'connection' | 'board', retryAfterMs: number): MessageAck {
+		const now = Date.now();
+		if (now - (overBudgetLogged.get(member.socket.id) ?? 0) > 10_000) {
+			overBudgetLogged.set(member.socket.id, now);
+			log.warn(`[collab] slowing ${who(member.socket)}: over the ${whose} byte budget (${room.id})`);
+		}
+		return {
+			ok: false,
+			retry:
+				whose === 'connection'
+					? 'Changes are arriving faster than the server takes them from one connection. They are kept on this device and sent again in a moment.'
+					: 'This board is taking more changes than the server accepts per second. Yours are kept on this device and sent again in a moment.',
+			retryAfterMs
+		};
+	}
+	const overBudgetLogged = new Map<string, number>();
+
 	/**
 	 * Everything that can be wrong with a message is found here, synchronously, before anything
 	 * is stored or sent: a malformed message closes the socket before its next message is read.
@@ -465,10 +525,22 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		const message = parseFrame(bytes);
 		switch (message.kind) {
 			case 'step1': {
+				// Each one costs an encoding of the board: the provider sends one per (re)join or rollback.
+				if (!member.syncRequests.take()) {
+					return closeSocket(member.socket, `more than ${SYNC_REQUESTS_PER_SECOND} sync requests per second (burst ${SYNC_REQUEST_BURST})`);
+				}
 				member.socket.emit(EVENT_MESSAGE, syncStep2Message(room.doc, message.stateVector));
 				return reply({ ok: true });
 			}
 			case 'update': {
+				const size = message.update.byteLength;
+				if (size > options.maxUpdateBytes) {
+					const reason = `This change is too large to save (${kib(size)}; the limit is ${kib(options.maxUpdateBytes)}). It was not saved.`;
+					log.warn(`[collab] refused an update from ${who(member.socket)}: ${size} bytes, over the ${options.maxUpdateBytes}-byte limit`);
+					return reply({ ok: false, refused: reason, readOnly: false });
+				}
+				const budget = spend(member.bytes, room.bytes, size);
+				if (!budget.ok) return reply(overBudget(room, member, budget.who, budget.retryAfterMs));
 				let decoded;
 				try {
 					decoded = decodeUpdateStrict(message.update);
@@ -477,6 +549,11 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 				}
 				// Nothing new (e.g. a read-only member's sync step 2 after a reconnect): nothing to store.
 				if (isEmptyUpdate(decoded) || isCoveredBy(room.doc, decoded)) return reply({ ok: true });
+				if (!member.readOnly && !room.size.fits(room.doc, size, options.maxDocumentBytes)) {
+					const reason = `This board has reached its size limit (${kib(options.maxDocumentBytes)}). Your change was not saved.`;
+					log.warn(`[collab] refused an update from ${who(member.socket)}: the board would pass ${options.maxDocumentBytes} bytes`);
+					return reply({ ok: false, refused: reason, readOnly: false });
+				}
 				if (!member.readOnly && !can(member.viewer.role, 'review.decide')) {
 					const decision = tryOnShadow(room, message.update);
 					if (decision) {
@@ -488,6 +565,9 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 				return storeUpdate(room, member, message.update, reply);
 			}
 			case 'awareness': {
+				// Presence is passing news: over the budget it is dropped, not kept.
+				if (member.bytes.waitMs() > 0) return reply({ ok: true });
+				member.bytes.take(message.update.byteLength);
 				let clean: Uint8Array;
 				try {
 					clean = sanitiseAwareness(room, member, message.update);
@@ -505,6 +585,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 	io.on('connection', (socket) => {
 		const viewer = socket.data.viewer as BoardViewer;
 		const bucket = new TokenBucket(options.messagesPerSecond, options.messageBurst);
+		const bytes = new ByteBucket(options.socketBytesPerSecond, options.socketByteBurst);
 
 		socket.use((_packet, next) => {
 			if (bucket.take()) return next();
@@ -538,16 +619,31 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 					room.unloadTimer = null;
 				}
 				socket.data.boardId = boardId;
-				room.members.set(socket.id, { socket, viewer, readOnly: access.readOnly, reason: access.reason, clientIds: new Set() });
+				room.members.set(socket.id, {
+					socket,
+					viewer,
+					readOnly: access.readOnly,
+					reason: access.reason,
+					clientIds: new Set(),
+					bytes,
+					syncRequests: new TokenBucket(SYNC_REQUESTS_PER_SECOND, SYNC_REQUEST_BURST)
+				});
 				socket.join(roomOf(boardId));
-				reply({ ok: true, readOnly: access.readOnly, reason: access.reason, user: { id: viewer.userId, name: viewer.name } });
+				reply({
+					ok: true,
+					readOnly: access.readOnly,
+					reason: access.reason,
+					user: { id: viewer.userId, name: viewer.name },
+					maxUpdateBytes: options.maxUpdateBytes
+				});
 				socket.emit(EVENT_MESSAGE, syncStep1Message(room.doc));
 				if (room.awareness.states.size > 0) {
 					socket.emit(EVENT_MESSAGE, frame(MESSAGE_AWARENESS, encodeAwarenessUpdate(room.awareness, [...room.awareness.states.keys()])));
 				}
 			} catch (e) {
 				log.error(`[collab] join of board ${boardId} by ${who(socket)} failed: ${(e as Error).message}`);
-				reply({ ok: false, error: 'The board could not be opened. Try again shortly.' });
+				// Whatever failed (most likely the database), it may work in a moment.
+				reply({ ok: false, error: 'The board could not be opened just now. Trying again…', retry: true });
 			}
 		});
 
@@ -580,6 +676,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 			if (reason !== 'client namespace disconnect' && reason !== 'server namespace disconnect') {
 				log.info(`[collab] ${who(socket)} left: ${reason}`);
 			}
+			overBudgetLogged.delete(socket.id);
 			if (member.clientIds.size) removeAwarenessStates(room.awareness, [...member.clientIds], ORIGIN_LEAVE);
 			if (room.members.size === 0 && !closed) scheduleUnload(room);
 		});
@@ -630,6 +727,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 					if (missing.snapshot) Y.applyUpdate(room.doc, missing.snapshot, ORIGIN_CATCH_UP);
 					for (const r of missing.rows) {
 						room.seen.add(r.seq);
+						room.size.grew(r.update.byteLength);
 						Y.applyUpdate(room.doc, r.update, ORIGIN_CATCH_UP);
 					}
 				} finally {
@@ -694,36 +792,16 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		}
 	}
 
-	let listener: pg.PoolClient | null = null;
-	let listenerTimer: ReturnType<typeof setTimeout> | null = null;
-	async function listen() {
-		listenerTimer = null;
-		if (closed) return;
-		try {
-			const client = await pool.connect();
-			client.on('notification', (msg) => {
-				if (msg.channel === BOARD_CHANNEL && msg.payload) void refreshRoom(msg.payload);
-			});
-			client.on('error', (e) => {
-				log.error(`[collab] board-state listener: ${e.message}`);
-				client.release(e);
-				if (listener === client) listener = null;
-				if (!closed) listenerTimer = setTimeout(() => void listen(), 2000);
-			});
-			await client.query(`LISTEN ${BOARD_CHANNEL}`);
-			listener = client;
-			if (closed) {
-				listener = null;
-				client.release();
-			}
-			// Anything announced while the listener was down: refresh every open room.
+	// Board state changes from any process. The connection is re-opened whenever it is lost;
+	// every open room is re-checked then, for whatever was announced meanwhile.
+	const listener = listenForever(pool, BOARD_CHANNEL, {
+		part: 'board-state listener',
+		onNotify: (boardId) => void refreshRoom(boardId),
+		onConnected: () => {
 			for (const id of rooms.keys()) void refreshRoom(id);
-		} catch (e) {
-			log.error(`[collab] board-state listener could not start: ${(e as Error).message}`);
-			if (!closed) listenerTimer = setTimeout(() => void listen(), 2000);
-		}
-	}
-	void listen();
+		},
+		log
+	});
 
 	return {
 		stats() {
@@ -735,13 +813,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 			closed = true;
 			if (catchUpTimer) clearInterval(catchUpTimer);
 			if (sweepTimer) clearInterval(sweepTimer);
-			if (listenerTimer) clearTimeout(listenerTimer);
-			if (listener) {
-				const l = listener;
-				listener = null;
-				await l.query(`UNLISTEN ${BOARD_CHANNEL}`).catch(() => {});
-				l.release();
-			}
+			await listener.close();
 			await writer.close();
 			// Fold what was written into snapshots; not needed for safety (the log is durable).
 			await Promise.all(

@@ -1,8 +1,28 @@
 // Group commit for board updates: one INSERT in flight at a time; whatever arrives meanwhile
 // goes into the next one. An update is answered only once its batch is committed. When the
-// database fails, the batch stays in memory and is retried with back-off, so nothing that was
-// accepted is lost while the process lives (and nothing unstored is ever acknowledged).
+// database fails, the batch is tried a few more times with a short back-off (a dropped
+// connection is replaced by the pool at once); if it still fails, every update of the batch is
+// rejected with StorageUnavailable: the sender is told "not stored, try again later" and keeps
+// its change. Nothing unstored is ever acknowledged. While the database is away the writer
+// reports 'down' (see db-health.ts) and probes it until it answers.
 import { appendUpdates, type PendingUpdate, type Queryable } from './persistence';
+import { reportHealth } from '../db-health';
+
+export const WRITER_PART = 'board writer';
+
+/** The database could not store the update now; the sender should keep it and send it again. */
+export class StorageUnavailable extends Error {}
+
+export interface WriterRetry {
+	/** Tries per batch before its updates are rejected (the first one included). */
+	attempts: number;
+	/** Wait before the second try; doubles for each further one. */
+	baseDelayMs: number;
+	/** While down, check the database this often until it answers. */
+	probeMs: number;
+}
+
+export const DEFAULT_WRITER_RETRY: WriterRetry = { attempts: 3, baseDelayMs: 100, probeMs: 1000 };
 
 interface Waiting {
 	item: PendingUpdate;
@@ -15,18 +35,58 @@ export class UpdateWriter {
 	#running = false;
 	#closed = false;
 	#idle: Array<() => void> = [];
-	stats = { batches: 0, rows: 0, failures: 0, largestBatch: 0 };
+	stats = { batches: 0, rows: 0, failures: 0, givenUp: 0, largestBatch: 0 };
 	/** Milliseconds per batch (append + commit), the latest ones, for percentiles. */
 	#timings = new Float64Array(4096);
 	#timed = 0;
 
+	#down = false;
+	#probeTimer: ReturnType<typeof setTimeout> | null = null;
+
 	constructor(
 		private readonly db: Queryable,
 		private readonly maxBatch = 500,
-		private readonly store: (db: Queryable, items: PendingUpdate[]) => Promise<(string | null)[]> = appendUpdates
+		private readonly store: (db: Queryable, items: PendingUpdate[]) => Promise<(string | null)[]> = appendUpdates,
+		private readonly retry: WriterRetry = DEFAULT_WRITER_RETRY,
+		private readonly report: typeof reportHealth = reportHealth
 	) {}
 
-	/** Resolves with the stored seq, or null when the database refused it (permission, state). */
+	/** True after the last batch failed for good, until the database answers again. */
+	get down() {
+		return this.#down;
+	}
+
+	#setDown(down: boolean, error?: string) {
+		this.#down = down;
+		this.report(WRITER_PART, down ? 'down' : 'up', error);
+		if (down) this.#scheduleProbe();
+		else if (this.#probeTimer) {
+			clearTimeout(this.#probeTimer);
+			this.#probeTimer = null;
+		}
+	}
+
+	/** Nothing may arrive to be written: find out by itself when the database is back. */
+	#scheduleProbe() {
+		if (this.#probeTimer || this.#closed) return;
+		this.#probeTimer = setTimeout(async () => {
+			this.#probeTimer = null;
+			if (!this.#down || this.#closed) return;
+			try {
+				await this.db.query({ text: 'select 1' });
+				if (this.#down && !this.#running) this.#setDown(false);
+			} catch (e) {
+				this.report(WRITER_PART, 'down', (e as Error).message);
+				this.#scheduleProbe();
+			}
+		}, this.retry.probeMs);
+		this.#probeTimer.unref?.();
+	}
+
+	/**
+	 * Resolves with the stored seq, or null when the database refused it (permission, state);
+	 * rejects with StorageUnavailable when the database could not be reached.
+	 */
 	enqueue(item: PendingUpdate): Promise<string | null> {
 		if (this.#closed) return Promise.reject(new Error('writer closed'));
 		return new Promise((resolve, reject) => {
@@ -65,16 +125,22 @@ export class UpdateWriter {
 						this.stats.batches++;
 						this.stats.rows += batch.length;
 						this.stats.largestBatch = Math.max(this.stats.largestBatch, batch.length);
+						if (this.#down) this.#setDown(false);
 						batch.forEach((w, i) => w.resolve(seqs[i]));
 						break;
 					} catch (e) {
 						this.stats.failures++;
-						if (this.#closed && attempt >= 2) {
-							batch.forEach((w) => w.reject(e as Error));
+						const message = (e as Error).message;
+						if (attempt + 1 >= this.retry.attempts) {
+							console.error(`[collab] storing ${batch.length} update(s) failed ${attempt + 1} times (${message}); the senders keep them and try again`);
+							this.stats.givenUp += batch.length;
+							this.#setDown(true, message);
+							const err = new StorageUnavailable(`the database is not reachable (${message})`);
+							batch.forEach((w) => w.reject(err));
 							break;
 						}
-						const wait = Math.min(5000, 100 * 2 ** attempt);
-						console.error(`[collab] storing ${batch.length} update(s) failed (${(e as Error).message}); retrying in ${wait} ms`);
+						const wait = this.retry.baseDelayMs * 2 ** attempt;
+						console.error(`[collab] storing ${batch.length} update(s) failed (${message}); retrying in ${wait} ms`);
 						await new Promise((r) => setTimeout(r, wait));
 					}
 				}
@@ -93,6 +159,8 @@ export class UpdateWriter {
 
 	async close() {
 		this.#closed = true;
+		if (this.#probeTimer) clearTimeout(this.#probeTimer);
+		this.#probeTimer = null;
 		await this.drain();
 	}
 }

@@ -1,6 +1,7 @@
 import { Kysely, PostgresDialect } from 'kysely';
 import pg from 'pg';
 import type { Database } from './types';
+import { guardPool } from '../db-health';
 
 export type DB = Kysely<Database>;
 
@@ -11,10 +12,11 @@ export interface DbHandle {
 }
 
 /** One pool and one Kysely instance per process; callers pass the URL (no env reads here). */
-export function createDb(connectionString: string, max = 10): DbHandle {
+export function createDb(connectionString: string, max = 10, label = 'app pool'): DbHandle {
 	const pool = new pg.Pool({ connectionString, max });
-	// An idle client that loses its connection must not crash the process.
-	pool.on('error', (err) => console.error('[db] idle client error:', err.message));
+	// A client that loses its connection, idle or checked out (Kysely holds one through a
+	// transaction), must not crash the process.
+	guardPool(pool, label);
 	const db = new Kysely<Database>({ dialect: new PostgresDialect({ pool }) });
 	return {
 		db,

@@ -1,0 +1,224 @@
+// Floods that stay under the message limits: byte budgets per connection and per board, the
+// largest update and the largest document. Driven through the real socket as an attacker
+// would (raw socket.io, many large updates) and with the provider as a person would (changes
+// held back, kept and sent again). Small limits here so the test is quick; the defaults are in
+// src/lib/server/collab/config.ts.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import * as Y from 'yjs';
+import * as encoding from 'lib0/encoding';
+import { randomBytes } from 'node:crypto';
+import { isDeepStrictEqual } from 'node:util';
+import { io as connect, type Socket } from 'socket.io-client';
+import * as syncProtocol from 'y-protocols/sync';
+import { sql } from 'kysely';
+import { createTestDatabase, type TestDatabase } from '../helpers/db';
+import { startApp, type RunningApp } from '../helpers/app';
+import { content, createBoardFixture, next, openProvider, sessionCookie, storedDoc, waitFor, type BoardFixture } from '../helpers/collab';
+import { addPoint, readBoard } from '../../src/lib/board/model';
+import { EVENT_JOIN, EVENT_MESSAGE, MESSAGE_SYNC, type JoinReply, type MessageAck } from '../../src/lib/board/sync/protocol';
+import type { BoardProvider } from '../../src/lib/board/sync/provider';
+
+const LIMITS = {
+	COLLAB_MAX_UPDATE_BYTES: String(100 * 1024),
+	COLLAB_MAX_DOCUMENT_BYTES: String(300 * 1024),
+	COLLAB_SOCKET_BYTES_PER_SECOND: String(40 * 1024),
+	COLLAB_SOCKET_BYTE_BURST: String(100 * 1024),
+	COLLAB_BOARD_BYTES_PER_SECOND: String(200 * 1024),
+	COLLAB_BOARD_BYTE_BURST: String(400 * 1024)
+};
+
+let t: TestDatabase;
+let app: RunningApp;
+let f: BoardFixture;
+let tech: string;
+let engineer: string;
+const sockets: Socket[] = [];
+const providers: BoardProvider[] = [];
+
+async function joinedSocket(boardId: string): Promise<Socket> {
+	const socket = connect(app.url, { transports: ['websocket'], extraHeaders: { cookie: tech }, forceNew: true, reconnection: false });
+	sockets.push(socket);
+	await new Promise<void>((resolve, reject) => {
+		socket.once('connect', () => resolve());
+		socket.once('connect_error', reject);
+	});
+	const reply = (await socket.emitWithAck(EVENT_JOIN, { boardId })) as JoinReply;
+	if (!reply.ok) throw new Error(reply.error);
+	return socket;
+}
+
+/** A sync update carrying `bytes` of fresh text (each call a new change). */
+function bigUpdate(bytes: number): Uint8Array {
+	const doc = new Y.Doc();
+	doc.getText('notes').insert(0, randomBytes(bytes / 2).toString('hex'));
+	const e = encoding.createEncoder();
+	encoding.writeVarUint(e, MESSAGE_SYNC);
+	syncProtocol.writeUpdate(e, Y.encodeStateAsUpdate(doc));
+	return encoding.toUint8Array(e);
+}
+
+function send(socket: Socket, message: Uint8Array): Promise<MessageAck> {
+	return socket.timeout(10_000).emitWithAck(EVENT_MESSAGE, message) as Promise<MessageAck>;
+}
+
+async function storedBytes(boardId: string) {
+	const r = await sql<{ n: string; bytes: string | null }>`
+		select count(*)::text as n, sum(length(update))::text as bytes from board_update where board_id = ${boardId}`.execute(t.db);
+	return { rows: Number(r.rows[0].n), bytes: Number(r.rows[0].bytes ?? 0) };
+}
+
+function provider(boardId: string, cookie: string) {
+	const p = openProvider(app.url, boardId, cookie);
+	providers.push(p);
+	return p;
+}
+
+beforeAll(async () => {
+	t = await createTestDatabase();
+	app = await startApp({ databaseUrl: t.url, env: { ...LIMITS, COLLAB_COMPACT_EVERY: '100000' } });
+	f = await createBoardFixture(t.db, { boards: 5 });
+	tech = await sessionCookie(app.url, f.people.technician);
+	engineer = await sessionCookie(app.url, f.people.engineer);
+});
+afterAll(async () => {
+	for (const s of sockets) s.disconnect();
+	await Promise.all(providers.map((p) => p.destroy()));
+	await app?.stop();
+	await t?.drop();
+});
+
+describe('limits on what a board takes', () => {
+	it('refuses an update over the largest update size with the reason, and stores nothing of it', async () => {
+		const boardId = f.boardIds[0];
+		const socket = await joinedSocket(boardId);
+		const ack = await send(socket, bigUpdate(150 * 1024));
+		expect(ack.ok).toBe(false);
+		expect('refused' in ack && ack.refused).toMatch(/too large to save \(\d+ KB; the limit is 100 KB\)/);
+		expect((await storedBytes(boardId)).rows).toBe(0);
+		// The socket stays usable: a normal update is stored.
+		expect(await send(socket, bigUpdate(2 * 1024))).toEqual({ ok: true });
+		expect((await storedBytes(boardId)).rows).toBe(1);
+
+		// Through the provider: the person is told why, the board goes on from the server's state.
+		const p = provider(boardId, engineer);
+		await p.whenSynced();
+		const refused = next(p, 'refused');
+		p.doc.getText('notes').insert(0, randomBytes(75 * 1024).toString('hex'));
+		const [reason] = await refused;
+		expect(reason).toMatch(/too large to save/);
+		expect((await storedBytes(boardId)).rows).toBe(1);
+	});
+
+	it('slows a flood from one connection to its byte budget: the rest is answered "not now" with a wait', async () => {
+		const boardId = f.boardIds[1];
+		const socket = await joinedSocket(boardId);
+		const started = Date.now();
+		const acks: MessageAck[] = [];
+		// 40 updates of 60 KB as fast as the acks come back (2.4 MB).
+		for (let i = 0; i < 40; i++) acks.push(await send(socket, bigUpdate(60 * 1024)));
+		const seconds = (Date.now() - started) / 1000;
+		const accepted = acks.filter((a) => a.ok).length;
+		const slowed = acks.filter((a): a is Extract<MessageAck, { retry: string }> => 'retry' in a);
+		expect(accepted + slowed.length).toBe(40);
+		expect(slowed.length).toBeGreaterThan(30);
+		expect(slowed[0].retry).toMatch(/faster than the server takes them/);
+		expect(slowed[0].retryAfterMs).toBeGreaterThan(0);
+		// Stored: the burst plus the rate over the time taken, plus the one update that may go into debt.
+		const stored = await storedBytes(boardId);
+		expect(stored.rows).toBe(accepted);
+		expect(stored.bytes).toBeLessThanOrEqual(100 * 1024 + 40 * 1024 * seconds + 62 * 1024);
+		// After waiting as told, the connection is let through again.
+		await new Promise((r) => setTimeout(r, Math.max(...slowed.slice(-1).map((s) => s.retryAfterMs))));
+		expect(await send(socket, bigUpdate(1024))).toEqual({ ok: true });
+	});
+
+	it('a person over the budget keeps every change: they are held back, merged and sent again until stored', async () => {
+		const boardId = f.boardIds[2];
+		const p = provider(boardId, tech);
+		const watcher = provider(boardId, engineer);
+		await Promise.all([p.whenSynced(), watcher.whenSynced()]);
+		const delayed: Array<string | null> = [];
+		const refused: string[] = [];
+		p.on('delayed', (r: string | null) => delayed.push(r));
+		p.on('refused', (r: string) => refused.push(r));
+		// 12 changes of 20 KB each at once: 240 KB against a 100 KB burst at 40 KB/s.
+		const ids: string[] = [];
+		for (let i = 0; i < 12; i++) {
+			p.doc.transact(() => {
+				ids.push(addPoint(p.doc, { x: i, y: i, label: `P${i + 1}`, notes: 'bearing housing' }));
+				p.doc.getText('scratch').insert(0, randomBytes(10 * 1024).toString('hex'));
+			});
+		}
+		await waitFor(() => p.delayed !== null, 'the provider says its changes are held back');
+		expect(p.unsynced).toBeGreaterThan(0);
+		await waitFor(() => p.unsynced === 0, 'every change stored in the end', 30_000);
+		expect(p.delayed).toBeNull();
+		expect(delayed[0]).toMatch(/kept on this device/);
+		await waitFor(() => isDeepStrictEqual(content(watcher.doc), content(p.doc)), 'the other person sees all of it');
+		await waitFor(() => watcher.doc.getText('scratch').length === 12 * 20 * 1024, 'and every byte of it');
+		const doc = await storedDoc(t.db, boardId);
+		expect(readBoard(doc).points.map((x) => x.id).sort()).toEqual([...ids].sort());
+		expect(doc.getText('scratch').toString()).toBe(p.doc.getText('scratch').toString());
+		expect(refused).toEqual([]); // nothing was rolled back
+	});
+
+	it('refuses growth beyond the largest document, and what is stored stays under it', async () => {
+		const boardId = f.boardIds[3];
+		// Four connections, each within its own budget, 90 KB each: the fourth would pass 300 KB.
+		const acks: MessageAck[] = [];
+		for (let i = 0; i < 4; i++) acks.push(await send(await joinedSocket(boardId), bigUpdate(90 * 1024)));
+		expect(acks.slice(0, 3)).toEqual([{ ok: true }, { ok: true }, { ok: true }]);
+		expect(acks[3].ok).toBe(false);
+		expect('refused' in acks[3] && acks[3].refused).toMatch(/reached its size limit \(300 KB\)/);
+		const stored = await storedDoc(t.db, boardId);
+		expect(Y.encodeStateAsUpdate(stored).byteLength).toBeLessThanOrEqual(300 * 1024);
+		// Small edits that fit still go in.
+		expect(await send(sockets.at(-1)!, bigUpdate(1024))).toEqual({ ok: true });
+	});
+
+	it('closes a connection that keeps asking for the whole board (each answer costs an encoding of it)', async () => {
+		const socket = await joinedSocket(f.boardIds[3]);
+		let reason = '';
+		socket.on('board:closed', (e: { reason: string }) => (reason = e.reason));
+		const step1 = encoding.createEncoder();
+		encoding.writeVarUint(step1, MESSAGE_SYNC);
+		syncProtocol.writeSyncStep1(step1, new Y.Doc());
+		const message = encoding.toUint8Array(step1);
+		for (let i = 0; i < 30 && socket.connected; i++) socket.emit(EVENT_MESSAGE, message, () => {});
+		await waitFor(() => !socket.connected, 'the socket closed');
+		expect(reason).toMatch(/sync requests per second/);
+	});
+
+	it('a flood on one board leaves people on another board working normally', async () => {
+		const boardId = f.boardIds[4];
+		const a = provider(boardId, engineer);
+		const b = provider(boardId, tech);
+		await Promise.all([a.whenSynced(), b.whenSynced()]);
+		// The flood: two connections on board 1, firing without waiting for answers.
+		const flooders = [await joinedSocket(f.boardIds[1]), await joinedSocket(f.boardIds[1])];
+		let flooding = true;
+		const floodAcks: MessageAck[] = [];
+		const flood = (async () => {
+			while (flooding) {
+				for (const s of flooders) s.emit(EVENT_MESSAGE, bigUpdate(60 * 1024), (a: MessageAck) => floodAcks.push(a));
+				await new Promise((r) => setTimeout(r, 40));
+			}
+		})();
+		try {
+			// Past the flooders' bursts: from here on they are held to their budgets.
+			await waitFor(() => floodAcks.some((a) => 'retry' in a), 'the flood is being slowed');
+			for (let i = 0; i < 10; i++) {
+				const id = addPoint(i % 2 ? a.doc : b.doc, { x: 5 * i, y: 7 * i, label: `Q${i}` });
+				await waitFor(() => (i % 2 ? b.doc : a.doc).getMap('points').has(id), `edit ${i} seen by the other person`);
+			}
+			await waitFor(() => a.unsynced === 0 && b.unsynced === 0, 'all acknowledged');
+			expect(a.delayed).toBeNull();
+			expect(b.delayed).toBeNull();
+		} finally {
+			flooding = false;
+		}
+		await flood;
+		expect(floodAcks.filter((a) => 'retry' in a).length).toBeGreaterThan(10);
+		expect(readBoard(await storedDoc(t.db, boardId)).points).toHaveLength(10);
+	});
+});
