@@ -1,3 +1,4 @@
+import { DEFAULT_COLLAB_OPTIONS } from '../../../src/lib/server/collab/config';
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
 import * as Y from 'yjs';
@@ -309,7 +310,10 @@ describe('the schema of every item', () => {
 
 	test('a 990 KB label is refused', () => {
 		const { doc, p4 } = reviewedBoard();
-		const r = raw(doc, p4, 'label', 'x'.repeat(990 * 1024));
+		// Over the largest update a board takes, it is refused before it is read...
+		expect(codes(raw(doc, p4, 'label', 'x'.repeat(990 * 1024)))).toEqual(['limit.update-bytes']);
+		// ...and under it, by the label's own schema.
+		const r = raw(doc, p4, 'label', 'x'.repeat(100 * 1024));
 		expect(r).toMatchObject({ ok: false, refusals: [{ field: 'label', code: 'schema.value' }] });
 		expect(codes(raw(doc, p4, 'notes', 'x'.repeat(2001)))).toEqual(['schema.value']);
 		expect(raw(doc, p4, 'notes', 'x'.repeat(2000))).toEqual({ ok: true });
@@ -466,14 +470,13 @@ describe('limits', () => {
 		expect(check(doc, tam, (d) => updatePoint(d, p.id, { notes: 'x' }), lower)).toEqual({ ok: true });
 	});
 
-	test('the default limits are those settings start from', () => {
+	test('the default limits are the live board’s defaults, so browser and server agree', () => {
 		expect(DEFAULT_BOARD_LIMITS).toEqual({
-			maxPoints: 2000,
-			maxRoutes: 1000,
-			maxZones: 500,
-			maxUpdateBytes: 1024 * 1024,
-			maxDocumentBytes: 5 * 1024 * 1024
+			...DEFAULT_COLLAB_OPTIONS.boardLimits,
+			maxUpdateBytes: DEFAULT_COLLAB_OPTIONS.maxUpdateBytes,
+			maxDocumentBytes: DEFAULT_COLLAB_OPTIONS.maxDocumentBytes
 		});
+		expect(DEFAULT_BOARD_LIMITS.maxPoints).toBe(2000);
 	});
 
 	test('an update over the size limit is refused before it is read', () => {

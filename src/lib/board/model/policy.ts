@@ -52,8 +52,9 @@ export const DEFAULT_BOARD_LIMITS: Readonly<BoardLimits> = Object.freeze({
 	maxPoints: 2000,
 	maxRoutes: 1000,
 	maxZones: 500,
-	maxUpdateBytes: 1024 * 1024,
-	maxDocumentBytes: 5 * 1024 * 1024
+	// The same as the live board's defaults (COLLAB_MAX_UPDATE_BYTES, COLLAB_MAX_DOCUMENT_BYTES).
+	maxUpdateBytes: 512 * 1024,
+	maxDocumentBytes: 8 * 1024 * 1024
 });
 
 export interface BoardActor {

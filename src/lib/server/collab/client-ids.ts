@@ -62,3 +62,50 @@ export async function claimOwners(db: DB, boardId: string, userId: string, ids: 
 		.execute();
 	return new Map(rows.map((r) => [Number(r.client_id), r.user_id]));
 }
+
+/**
+ * Makes sure `userId` may write under `ids`, using and filling the room's cache of owners. Ids
+ * not in the cache are looked up (another process may have seen them); ids nobody owns are
+ * claimed, unless the board already holds content under them (written before ownership was
+ * recorded): those stay closed.
+ */
+export async function ensureOwnership(
+	db: DB,
+	owners: Map<number, string>,
+	boardId: string,
+	userId: string,
+	ids: Iterable<number>,
+	stateOf: (clientId: number) => number
+): Promise<OwnershipVerdict> {
+	const unknown: number[] = [];
+	for (const id of ids) {
+		const owner = owners.get(id);
+		if (owner === undefined) unknown.push(id);
+		else if (owner !== userId) return { ok: false, clientId: id, reason: REASON_FORGED };
+	}
+	if (unknown.length === 0) return { ok: true, claim: [] };
+	const stored = await db
+		.selectFrom('board_client')
+		.select(['client_id', 'user_id'])
+		.where('board_id', '=', boardId)
+		.where('client_id', '=', sql<string>`any(${sql.val(unknown.map(String))}::bigint[])`)
+		.execute();
+	for (const r of stored) owners.set(Number(r.client_id), r.user_id);
+	const claim: number[] = [];
+	for (const id of unknown) {
+		const owner = owners.get(id);
+		if (owner !== undefined) {
+			if (owner !== userId) return { ok: false, clientId: id, reason: REASON_FORGED };
+		} else if (stateOf(id) > 0) {
+			return { ok: false, clientId: id, reason: REASON_FORGED };
+		} else {
+			claim.push(id);
+		}
+	}
+	if (claim.length) {
+		const now = await claimOwners(db, boardId, userId, claim);
+		for (const [id, owner] of now) owners.set(id, owner);
+		for (const id of claim) if (owners.get(id) !== userId) return { ok: false, clientId: id, reason: REASON_FORGED };
+	}
+	return { ok: true, claim };
+}

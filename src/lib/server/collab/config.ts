@@ -32,6 +32,8 @@ export interface CollabOptions {
 	/** The same for all sockets of one board together (per server process). */
 	boardBytesPerSecond: number;
 	boardByteBurst: number;
+	/** Counts of items a board may hold (the board policy refuses growth beyond them). */
+	boardLimits: { maxPoints: number; maxRoutes: number; maxZones: number };
 }
 
 export const DEFAULT_COLLAB_OPTIONS: CollabOptions = {
@@ -55,7 +57,10 @@ export const DEFAULT_COLLAB_OPTIONS: CollabOptions = {
 	socketBytesPerSecond: 64 * 1024,
 	socketByteBurst: 256 * 1024,
 	boardBytesPerSecond: 128 * 1024,
-	boardByteBurst: 512 * 1024
+	boardByteBurst: 512 * 1024,
+	// A machine photo holds a handful of points; 2,000 leaves room for a big drawing of a whole
+	// skid while keeping a board that every tablet can draw.
+	boardLimits: { maxPoints: 2000, maxRoutes: 1000, maxZones: 500 }
 };
 
 function int(raw: string | undefined, fallback: number, min: number, name: string) {
@@ -81,6 +86,11 @@ export function collabOptionsFromEnv(env: Record<string, string | undefined>): C
 		socketBytesPerSecond: int(env.COLLAB_SOCKET_BYTES_PER_SECOND, d.socketBytesPerSecond, 1024, 'COLLAB_SOCKET_BYTES_PER_SECOND'),
 		socketByteBurst: int(env.COLLAB_SOCKET_BYTE_BURST, d.socketByteBurst, 1024, 'COLLAB_SOCKET_BYTE_BURST'),
 		boardBytesPerSecond: int(env.COLLAB_BOARD_BYTES_PER_SECOND, d.boardBytesPerSecond, 1024, 'COLLAB_BOARD_BYTES_PER_SECOND'),
-		boardByteBurst: int(env.COLLAB_BOARD_BYTE_BURST, d.boardByteBurst, 1024, 'COLLAB_BOARD_BYTE_BURST')
+		boardByteBurst: int(env.COLLAB_BOARD_BYTE_BURST, d.boardByteBurst, 1024, 'COLLAB_BOARD_BYTE_BURST'),
+		boardLimits: {
+			maxPoints: int(env.COLLAB_MAX_POINTS, d.boardLimits.maxPoints, 1, 'COLLAB_MAX_POINTS'),
+			maxRoutes: int(env.COLLAB_MAX_ROUTES, d.boardLimits.maxRoutes, 1, 'COLLAB_MAX_ROUTES'),
+			maxZones: int(env.COLLAB_MAX_ZONES, d.boardLimits.maxZones, 1, 'COLLAB_MAX_ZONES')
+		}
 	};
 }

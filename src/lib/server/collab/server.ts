@@ -34,7 +34,10 @@ import { TokenBucket } from './rate-limit';
 import { ByteBucket, DocumentSize, kib, spend } from './budget';
 import { listenForever } from './pg-listen';
 import { isConnectionError } from '../db-health';
-import { catchUpShadow, decodeUpdateStrict, isCoveredBy, isEmptyUpdate, reviewDecisionIn } from './update-check';
+import { catchUpShadow, decodeUpdateStrict, isCoveredBy, isEmptyUpdate } from './update-check';
+import { checkBoardChange, cloneDoc } from '../../board/model/policy';
+import { refusalMessage } from '../../board/sync/policy-check';
+import { ensureOwnership, structClientIds } from './client-ids';
 import { can } from '../auth/guard';
 import type { CollabOptions } from './config';
 import { BOARD_CHANNEL } from './notify';
@@ -82,8 +85,10 @@ class BoardRoom {
 	compacting: Promise<void> | null = null;
 	/** Relayed updates that arrive while the room is loading; applied once it is ready. */
 	early: Array<{ seq: string; update: Uint8Array }> = [];
-	/** A copy of the document to try updates on before they are accepted (see reviewDecisionIn). */
+	/** A copy of the document to try updates on with the board policy before they are accepted. */
 	shadow: Y.Doc | null = null;
+	/** Who introduced which Yjs client id on this board (filled as ids are looked up or claimed). */
+	readonly owners = new Map<number, string>();
 	/** Bytes of updates all sockets of the board may send here (budget.ts). */
 	bytes: ByteBucket;
 	readonly size = new DocumentSize();
@@ -475,28 +480,38 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		room.shadow = null;
 	}
 
-	/** The review decision the update would write, trying it on the room's shadow copy. */
-	function tryOnShadow(room: BoardRoom, update: Uint8Array): string | null {
-		if (!room.shadow) {
-			room.shadow = new Y.Doc();
-			Y.applyUpdate(room.shadow, Y.encodeStateAsUpdate(room.doc));
-		} else {
-			catchUpShadow(room.shadow, room.doc);
-		}
-		let decision: string | null;
-		try {
-			decision = reviewDecisionIn(room.shadow, update);
-		} catch (e) {
-			room.shadow.destroy();
-			room.shadow = null;
-			throw new Malformed(`update does not apply: ${(e as Error).message}`);
-		}
-		if (decision) {
-			// The shadow now holds a change the room will never get: start it afresh next time.
-			room.shadow.destroy();
-			room.shadow = null;
-		}
-		return decision;
+	/**
+	 * The board policy (src/lib/board/model/policy.ts), the same the browser runs, on the room's
+	 * shadow copy: null when the update may be stored, else the reasons in words for the person.
+	 */
+	function checkPolicy(room: BoardRoom, member: RoomMember, update: Uint8Array): string | null {
+		if (!room.shadow) room.shadow = cloneDoc(room.doc);
+		else catchUpShadow(room.shadow, room.doc);
+		const r = checkBoardChange(
+			room.doc,
+			update,
+			{ role: member.viewer.role, userId: member.viewer.userId, name: member.viewer.name },
+			{
+				frozen: false, // read-only members and frozen boards are refused by the store's own check
+				limits: { ...options.boardLimits, maxUpdateBytes: options.maxUpdateBytes, maxDocumentBytes: options.maxDocumentBytes },
+				documentBytes: room.size.bound
+			},
+			{ shadow: room.shadow }
+		);
+		if (r.ok) return null;
+		// The shadow now holds a change the room will never get: start it afresh next time.
+		dropShadow(room);
+		return refusalMessage(r.refusals.map((x) => x.reason));
+	}
+
+	/** Client ids belong to the member who introduced them: null when the update keeps to its own. */
+	async function checkClientIds(room: BoardRoom, member: RoomMember, decoded: ReturnType<typeof decodeUpdateStrict>): Promise<string | null> {
+		const verdict = await ensureOwnership(db, room.owners, room.id, member.viewer.userId, structClientIds(decoded), (id) =>
+			Y.getState(room.doc.store, id)
+		);
+		if (verdict.ok) return null;
+		log.warn(`[collab] refused an update from ${who(member.socket)}: writes under client id ${verdict.clientId} of someone else`);
+		return verdict.reason;
 	}
 
 	/** The answer to an update over a byte budget; logged once per burst, not per message. */
@@ -554,15 +569,17 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 					log.warn(`[collab] refused an update from ${who(member.socket)}: the board would pass ${options.maxDocumentBytes} bytes`);
 					return reply({ ok: false, refused: reason, readOnly: false });
 				}
-				if (!member.readOnly && !can(member.viewer.role, 'review.decide')) {
-					const decision = tryOnShadow(room, message.update);
-					if (decision) {
-						const reason = `Only an engineer can mark a point ${decision}. Your change was not saved; propose the point and ask for a review.`;
-						log.warn(`[collab] refused an update from ${who(member.socket)}: sets a point ${decision}`);
-						return reply({ ok: false, refused: reason, readOnly: false });
-					}
+				if (member.readOnly) return storeUpdate(room, member, message.update, reply);
+				const refusal = checkPolicy(room, member, message.update);
+				if (refusal) {
+					log.warn(`[collab] refused an update from ${who(member.socket)}: ${refusal}`);
+					return reply({ ok: false, refused: refusal, readOnly: false });
 				}
-				return storeUpdate(room, member, message.update, reply);
+				return checkClientIds(room, member, decoded).then((forged) => {
+					if (!forged) return storeUpdate(room, member, message.update, reply);
+					dropShadow(room);
+					reply({ ok: false, refused: forged, readOnly: false });
+				});
 			}
 			case 'awareness': {
 				// Presence is passing news: over the budget it is dropped, not kept.
