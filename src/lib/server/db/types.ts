@@ -197,7 +197,9 @@ export interface MediaTable {
 }
 
 // Surveys and live boards (migration 20261201110000_surveys).
-export type SurveyStatus = 'planned' | 'walking' | 'in_review' | 'approved';
+export type { SurveyStatus } from '../../survey/states';
+import type { SurveyStatus } from '../../survey/states';
+import type { ReviewTables } from './review-types';
 export type SurveyAssigneeRole = 'engineer' | 'technician';
 /** bigint columns come back as strings (pg does not narrow them to number); optional on insert. */
 type Bigint = ColumnType<string, string | number | bigint | undefined, string | number | bigint>;
@@ -264,7 +266,7 @@ export interface BoardClientTable {
 	claimed_at: Generated<Date>;
 }
 
-export interface Database {
+export interface Database extends ReviewTables {
 	organisation: OrganisationTable;
 	app_user: AppUserTable;
 	member: MemberTable;

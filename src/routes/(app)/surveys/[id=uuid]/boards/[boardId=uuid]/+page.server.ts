@@ -1,6 +1,7 @@
 import { error } from '@sveltejs/kit';
 import { requirePage } from '$lib/server/auth/require';
 import { can } from '$lib/server/auth/guard';
+import { boardAccess, isSettled } from '$lib/survey/board-access';
 import { context } from '$lib/server/context';
 import * as boards from '$lib/server/db/boards';
 import { getMachine } from '$lib/server/db/machines';
@@ -23,7 +24,15 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		listSupplyPoints(db, viewer.organisationId, machine.areaId ? { areaId: machine.areaId } : { siteId: machine.siteId }),
 		getThresholds(db, viewer.organisationId)
 	]);
-	const frozen = board.frozen_at !== null || board.survey_status === 'approved' || board.survey_archived_at !== null;
+	// The session is live: hooks signed this request in.
+	const access = boardAccess({
+		role: viewer.role,
+		surveyStatus: board.survey_status,
+		frozen: board.frozen_at !== null,
+		archived: board.survey_archived_at !== null,
+		sessionLive: true
+	});
+	const frozen = board.frozen_at !== null || isSettled(board.survey_status) || board.survey_archived_at !== null;
 	const ctx: BoardContext = {
 		boardId: board.id,
 		title: board.title,
@@ -46,9 +55,9 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		// Stored overrides as they are: the rule engine reports bad ones as findings.
 		thresholds: thresholds.overrides as Record<string, unknown>,
 		user: { id: viewer.userId, name: viewer.name, role: viewer.role },
-		canEdit: can(viewer.role, 'board.write') && !frozen,
+		canEdit: !access.readOnly,
 		canDecide: can(viewer.role, 'review.decide'),
 		frozen
 	};
-	return { ctx };
+	return { ctx, access: { readOnly: access.readOnly, reason: access.reason, surveyStatus: board.survey_status } };
 };
