@@ -62,11 +62,10 @@ export function surveyTodo(i: TodoInput): string[] {
 			return [...i.planLines, ...(engineer || technician ? ['Start the site walk when the team is on site.'] : [])];
 		case 'walking':
 		case 'changes_requested': {
-			const lines: string[] = [];
-			if (i.status === 'changes_requested' && i.changesReason) lines.push(`Changes requested: ${i.changesReason}`);
-			lines.push(...i.planLines, ...fieldLines(i.boards));
+			const work = [...i.planLines, ...fieldLines(i.boards)];
+			const lines = i.status === 'changes_requested' && i.changesReason ? [`Changes requested: ${i.changesReason}`, ...work] : work;
 			if (i.role === 'viewer') return lines.length ? lines : ['The technicians are walking the site.'];
-			lines.push(lines.length ? 'Submit for review when these are done (or explain in the note why not).' : 'Every board is ready: submit the survey for review.');
+			lines.push(work.length ? 'Submit for review when these are done (or explain in the note why not).' : 'Every board is ready: submit the survey for review.');
 			return lines;
 		}
 		case 'submitted':
