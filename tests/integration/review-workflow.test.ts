@@ -105,6 +105,10 @@ describe('survey transitions over the API', () => {
 		expect(engPage).toContain('Approve the layout');
 		expect(engPage).toContain('Request changes');
 		expect(engPage).toContain('Boards done');
+		// While it is submitted the technician opens no new board; the engineer still could.
+		const noBoard = await clients.technician.form(`/surveys/${f.surveyId}?/board`, { machineId: f.machineIds[0], mediaId: '' });
+		expect(noBoard.status).toBe(409);
+		expect(await noBoard.text()).toContain('submitted for review');
 		// A technician's approval through the form is refused with the reason beside it.
 		const refused = await clients.technician.form(`/surveys/${f.surveyId}?/transition`, { name: 'approve', confirm: '1' });
 		expect(refused.status).toBe(403);

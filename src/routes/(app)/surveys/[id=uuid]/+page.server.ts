@@ -20,7 +20,8 @@ import { transitionSurvey, listTransitions, WorkflowError } from '$lib/server/re
 import { surveyOpenItems } from '$lib/server/review/open-items';
 import { listRevisions } from '$lib/server/review/revisions';
 import { listThreads, mentionableMembers } from '$lib/server/review/comments';
-import { isSettled } from '$lib/survey/board-access';
+import { boardAccess, isSettled } from '$lib/survey/board-access';
+import type { Role, SurveyStatus } from '$lib/server/db/types';
 import type { Actions, PageServerLoad } from './$types';
 
 const uploadFail = (status: number, error: string, machineId: string | null = null) => fail(status, { action: 'upload' as const, error, machineId });
@@ -100,8 +101,8 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		left,
 		open,
 		canPlan: canPlan && open,
-		canBoard: can(viewer.role, 'board.write') && open,
-		canUpload: can(viewer.role, 'media.upload') && open,
+		canBoard: mayChangeBoards(viewer.role, survey),
+		canUpload: can(viewer.role, 'media.upload') && mayChangeBoards(viewer.role, survey),
 		transitions: availableTransitions(viewer.role, survey.status, survey.archived_at !== null).map((t) => ({ name: t.name, label: t.label, note: t.note })),
 		exceptions,
 		history: history.map((h) => ({
@@ -154,6 +155,7 @@ export const actions: Actions = {
 		const db = context().handle.db;
 		const survey = await surveys.get(db, viewer.organisationId, params.id);
 		if (!survey) error(404, 'No such survey in your organisation.');
+		if (!mayChangeBoards(viewer.role, survey)) return fail(409, { action: 'board' as const, error: boardsClosedReason(viewer.role, survey) });
 		const title = parsed.data.title || (await defaultTitle(viewer.organisationId, parsed.data.mediaId));
 		let created: { id: string } | null;
 		try {
@@ -172,6 +174,7 @@ export const actions: Actions = {
 		const db = context().handle.db;
 		const survey = await surveys.get(db, viewer.organisationId, params.id);
 		if (!survey) error(404, 'No such survey in your organisation.');
+		if (!mayChangeBoards(viewer.role, survey)) return uploadFail(409, boardsClosedReason(viewer.role, survey));
 		let fd: FormData;
 		try {
 			fd = await request.formData();
@@ -280,6 +283,14 @@ export const actions: Actions = {
 		return { action: 'transition' as const, done: name };
 	}
 };
+
+/** New boards and photos follow the board-access policy: not while a technician's survey is under review. */
+function mayChangeBoards(role: Role, survey: { status: SurveyStatus; archived_at: unknown }) {
+	return !boardAccess({ role, surveyStatus: survey.status, frozen: false, archived: survey.archived_at !== null, sessionLive: true }).readOnly;
+}
+function boardsClosedReason(role: Role, survey: { status: SurveyStatus; archived_at: unknown }) {
+	return boardAccess({ role, surveyStatus: survey.status, frozen: false, archived: survey.archived_at !== null, sessionLive: true }).reason ?? '';
+}
 
 async function defaultTitle(organisationId: string, mediaId: string | null): Promise<string> {
 	if (!mediaId) return 'Sketch board';

@@ -9,6 +9,7 @@ import { getMedia } from '$lib/server/db/media';
 import { listSupplyPoints } from '$lib/server/db/register';
 import { getThresholds } from '$lib/server/db/thresholds';
 import type { BoardContext } from '$lib/board/types';
+import { mentionableMembers } from '$lib/server/review/comments';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async ({ locals, params, url }) => {
@@ -18,11 +19,12 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 	if (!board || board.survey_id !== params.id) error(404, 'No such board in your organisation.');
 	const machine = await getMachine(db, viewer.organisationId, board.machine_id);
 	if (!machine) error(404, 'The machine of this board is not in your organisation.');
-	const [media, supply, thresholds] = await Promise.all([
+	const [media, supply, thresholds, members] = await Promise.all([
 		board.media_id ? getMedia(db, viewer.organisationId, board.media_id) : Promise.resolve(null),
 		// The 24 V DC supplies of the machine's area, or of its site when it has no area.
 		listSupplyPoints(db, viewer.organisationId, machine.areaId ? { areaId: machine.areaId } : { siteId: machine.siteId }),
-		getThresholds(db, viewer.organisationId)
+		getThresholds(db, viewer.organisationId),
+		mentionableMembers(db, viewer.organisationId)
 	]);
 	// The session is live: hooks signed this request in.
 	const access = boardAccess({
@@ -59,5 +61,10 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		canDecide: can(viewer.role, 'review.decide'),
 		frozen
 	};
-	return { ctx, access: { readOnly: access.readOnly, reason: access.reason, surveyStatus: board.survey_status } };
+	return {
+		ctx,
+		access: { readOnly: access.readOnly, reason: access.reason, surveyStatus: board.survey_status },
+		// For CommentThread on the board (survey, board, point and route comments).
+		comments: { surveyId: board.survey_id, boardId: board.id, members, canWrite: can(viewer.role, 'comment.write') }
+	};
 };
