@@ -115,4 +115,26 @@ describe('survey transitions over the API', () => {
 		const history = await (await clients.viewer.json('GET', `/api/v1/surveys/${f.surveyId}/transitions`)).json();
 		expect(history.items.at(-1)).toMatchObject({ transition: 'submit', from: 'walking', to: 'submitted', note: 'Boards done', actorRole: 'technician' });
 	});
+
+	it('approved revisions are readable as pages and through the API; other organisations get 404', async () => {
+		// The matrix above approved twice (admin and engineer from submitted): revisions 1 and 2.
+		const list = await (await clients.viewer.json('GET', `/api/v1/surveys/${f.surveyId}/revisions`)).json();
+		expect(list.items.map((r: { number: number }) => r.number)).toEqual([1, 2]);
+		expect(list.items.map((r: { approvedBy: string }) => r.approvedBy).sort()).toEqual([f.people.admin.userId, f.people.engineer.userId].sort());
+		const page = await clients.viewer.get(`/surveys/${f.surveyId}/revisions/2`);
+		expect(page.status).toBe(200);
+		expect(await page.text()).toContain('Revision 2');
+		const compare = await clients.technician.get(`/surveys/${f.surveyId}/revisions/compare?from=1&to=2`);
+		expect(compare.status).toBe(200);
+		expect(await compare.text()).toContain('data-testid="revision-diff"');
+		const diff = await (await clients.technician.json('GET', `/api/v1/surveys/${f.surveyId}/revisions/compare?from=1&to=2`)).json();
+		expect(diff).toMatchObject({ from: 1, to: 2, points: { added: [], removed: [], moved: [], changed: [] } });
+		expect((await clients.viewer.json('GET', `/api/v1/surveys/${f.surveyId}/revisions/compare?from=1`)).status).toBe(400);
+		expect((await clients.viewer.get(`/surveys/${f.surveyId}/revisions/9`)).status).toBe(404);
+		expect((await clients.viewer.json('GET', `/api/v1/surveys/${f.surveyId}/revisions/abc`)).status).toBe(404);
+		const outsider = new Client(app.url);
+		await outsider.signIn(other.people.admin.email, PASSWORD);
+		expect((await outsider.get(`/surveys/${f.surveyId}/revisions/1`)).status).toBe(404);
+		expect((await outsider.json('GET', `/api/v1/surveys/${f.surveyId}/revisions/1`)).status).toBe(404);
+	});
 });
