@@ -137,4 +137,20 @@ describe('survey transitions over the API', () => {
 		expect((await outsider.get(`/surveys/${f.surveyId}/revisions/1`)).status).toBe(404);
 		expect((await outsider.json('GET', `/api/v1/surveys/${f.surveyId}/revisions/1`)).status).toBe(404);
 	});
+
+	it('archiving: engineers only, once; an archived survey moves no more', async () => {
+		await setStatus('walking');
+		expect((await clients.technician.json('POST', `/api/v1/surveys/${f.surveyId}/archive`)).status).toBe(403);
+		expect((await clients.engineer.json('POST', `/api/v1/surveys/${other.surveyId}/archive`)).status).toBe(404);
+		const res = await clients.engineer.json('POST', `/api/v1/surveys/${f.surveyId}/archive`);
+		expect(res.status).toBe(200);
+		expect((await clients.engineer.json('POST', `/api/v1/surveys/${f.surveyId}/archive`)).status).toBe(404);
+		const audit = await t.db.selectFrom('audit_event').select(['action', 'actor_user_id']).where('subject_id', '=', f.surveyId).execute();
+		expect(audit).toEqual([{ action: 'survey.archived', actor_user_id: f.people.engineer.userId }]);
+		const moved = await clients.technician.json('POST', `/api/v1/surveys/${f.surveyId}/transitions`, { transition: 'submit' });
+		expect(moved.status).toBe(409);
+		const board = await (await clients.technician.get(`/surveys/${f.surveyId}/boards/${f.boardIds[0]}`)).text();
+		expect(board).toMatch(/canEdit:false/);
+		expect(board).toContain('This survey is archived; the board is read-only.');
+	});
 });
