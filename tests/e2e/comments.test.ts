@@ -6,7 +6,10 @@ import { createTestDatabase, type TestDatabase } from '../helpers/db';
 import { startApp, type RunningApp } from '../helpers/app';
 import { startTestMail } from '../helpers/mail';
 import { openBrowser, signInPage, type Browser } from '../helpers/browser';
+import { mkdirSync } from 'node:fs';
 import { createBoardFixture, PASSWORD, type BoardFixture } from '../helpers/collab';
+
+const SHOTS = process.env.SPOTFACE_SCREENSHOTS ?? 'test-results/review';
 
 let t: TestDatabase;
 let app: RunningApp;
@@ -71,6 +74,10 @@ describe('comments on the survey page', () => {
 		await expect.poll(() => page.getByTestId('survey-left').textContent()).toContain('waiting for the engineer');
 		const s = await t.db.selectFrom('survey').select('status').where('id', '=', f.surveyId).executeTakeFirstOrThrow();
 		expect(s.status).toBe('submitted');
+		mkdirSync(SHOTS, { recursive: true });
+		await page.screenshot({ path: `${SHOTS}/survey-submitted-820.png`, fullPage: true });
+		await engineer.page.goto(`${app.url}/surveys/${f.surveyId}`);
+		await engineer.page.screenshot({ path: `${SHOTS}/survey-review-1180.png`, fullPage: true });
 		expect(tech.errors).toEqual([]);
 	});
 });
