@@ -4,6 +4,7 @@ import { context } from '$lib/server/context';
 import { mentionsOf } from '$lib/server/review/comments';
 import { awaitingSurveys } from '$lib/server/review/awaiting';
 import { plainBody } from '$lib/survey/mentions';
+import { SETTLED_STATUSES } from '$lib/survey/states';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async ({ locals, url }) => {
@@ -33,7 +34,7 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 			.where('survey.organisation_id', '=', viewer.organisationId)
 			.where('survey_assignee.user_id', '=', viewer.userId)
 			.where('survey.archived_at', 'is', null)
-			.where('survey.status', 'not in', ['approved', 'jobs_issued', 'closed'])
+			.where('survey.status', 'not in', [...SETTLED_STATUSES])
 			.orderBy('survey.planned_date')
 			.limit(10)
 			.execute(),

@@ -60,7 +60,13 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		media: media.filter((x) => x.machineId === m.id),
 		boards: boardRows
 			.filter((b) => b.machine_id === m.id)
-			.map((b) => ({ id: b.id, title: b.title, mediaId: b.media_id, frozen: b.frozen_at !== null }))
+			.map((b) => ({
+				id: b.id,
+				title: b.title,
+				mediaId: b.media_id,
+				// Read-only for this reader (the board-access policy), shown on the button.
+				frozen: boardAccess({ role: viewer.role, surveyStatus: survey.status, frozen: b.frozen_at !== null, archived: survey.archived_at !== null, sessionLive: true }).readOnly
+			}))
 	}));
 	const planLines: string[] = [];
 	if (machineList.length === 0) planLines.push('Pick the machines to walk (edit the plan below).');
