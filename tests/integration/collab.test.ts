@@ -11,7 +11,7 @@ import { Client } from '../helpers/http';
 import { addPoint, movePoint, readBoard, updatePoint, maps } from '../../src/lib/board/model';
 import { EVENT_JOIN, type JoinReply } from '../../src/lib/board/sync/protocol';
 import type { BoardProvider } from '../../src/lib/board/sync/provider';
-import * as surveys from '../../src/lib/server/db/surveys';
+import { transitionSurvey } from '../../src/lib/server/review/workflow';
 
 let t: TestDatabase;
 let app: RunningApp;
@@ -146,8 +146,9 @@ describe('permissions', () => {
 		await waitFor(() => p.unsynced === 0, 'acknowledged before approval');
 
 		const readonly = next(p, 'readonly');
-		await surveys.setStatus(t.db, g.organisationId, g.surveyId, 'in_review', g.people.engineer.userId);
-		await surveys.setStatus(t.db, g.organisationId, g.surveyId, 'approved', g.people.engineer.userId);
+		const actor = { userId: g.people.engineer.userId, role: 'engineer' as const };
+		await transitionSurvey(t.db, { organisationId: g.organisationId, surveyId: g.surveyId, name: 'submit', actor });
+		await transitionSurvey(t.db, { organisationId: g.organisationId, surveyId: g.surveyId, name: 'approve', actor, confirmExceptions: true });
 		const [isReadOnly, why] = (await readonly) as [boolean, string];
 		expect(isReadOnly).toBe(true);
 		expect(why).toMatch(/approved/i);

@@ -4,7 +4,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import * as Y from 'yjs';
 import pg from 'pg';
 import { createTestDatabase, type TestDatabase } from '../helpers/db';
-import { createBoardFixture, type BoardFixture } from '../helpers/collab';
+import { createBoardFixture, waitFor, type BoardFixture } from '../helpers/collab';
+import { listTransitions, transitionSurvey } from '../../src/lib/server/review/workflow';
 import * as surveys from '../../src/lib/server/db/surveys';
 import * as boards from '../../src/lib/server/db/boards';
 import { BOARD_CHANNEL } from '../../src/lib/server/collab/notify';
@@ -70,13 +71,24 @@ describe('surveys', () => {
 		expect(await surveys.replacePlan(t.db, other.organisationId, s!.id, { title: 'x', machineIds: [], assignees: [] })).toBe(false);
 	});
 
-	it('moves through the statuses in order only', async () => {
+	it('moves through the statuses in order only, each move kept with who made it', async () => {
 		const s = (await surveys.create(t.db, f.organisationId, null, { siteId: f.siteId, title: 'Order' }))!;
-		await expect(surveys.setStatus(t.db, f.organisationId, s.id, 'approved', null)).rejects.toThrow(/cannot move to approved/);
-		expect(await surveys.setStatus(t.db, f.organisationId, s.id, 'walking', null)).toEqual({ id: s.id, status: 'walking' });
-		expect(await surveys.setStatus(t.db, f.organisationId, s.id, 'in_review', null)).toBeTruthy();
-		expect(await surveys.setStatus(t.db, f.organisationId, s.id, 'walking', null)).toBeTruthy(); // sent back
-		expect(await surveys.setStatus(t.db, other.organisationId, s.id, 'in_review', null)).toBeNull();
+		const eng = { userId: f.people.engineer.userId, role: 'engineer' as const };
+		const tech = { userId: f.people.technician.userId, role: 'technician' as const };
+		const move = (name: Parameters<typeof transitionSurvey>[1]['name'], actor: Parameters<typeof transitionSurvey>[1]['actor'] = eng, note = '', organisationId = f.organisationId) =>
+			transitionSurvey(t.db, { organisationId, surveyId: s.id, name, actor, note });
+		await expect(move('approve')).rejects.toMatchObject({ status: 409, message: expect.stringMatching(/only possible when it is submitted/) });
+		expect(await move('start', tech)).toMatchObject({ id: s.id, from: 'planned', to: 'walking' });
+		expect(await move('submit', tech, 'All photos done')).toMatchObject({ to: 'submitted' });
+		await expect(move('request_changes')).rejects.toMatchObject({ status: 400 });
+		expect(await move('request_changes', eng, 'Move P2 off the cowl')).toMatchObject({ to: 'changes_requested' });
+		await expect(move('submit', tech, '', other.organisationId)).rejects.toMatchObject({ status: 404 });
+		const history = await listTransitions(t.db, f.organisationId, s.id);
+		expect(history.map((h) => [h.transition, h.from_status, h.to_status, h.actor_user_id, h.note])).toEqual([
+			['start', 'planned', 'walking', tech.userId, ''],
+			['submit', 'walking', 'submitted', tech.userId, 'All photos done'],
+			['request_changes', 'submitted', 'changes_requested', eng.userId, 'Move P2 off the cowl']
+		]);
 	});
 
 	it('approval freezes every board of the survey and announces it to the live board', async () => {
@@ -85,17 +97,20 @@ describe('surveys', () => {
 		const heard: string[] = [];
 		listener.on('notification', (m) => heard.push(m.payload!));
 		await listener.query(`LISTEN ${BOARD_CHANNEL}`);
+		const eng = { userId: f.people.engineer.userId, role: 'engineer' as const };
 		try {
-			await surveys.setStatus(t.db, f.organisationId, f.surveyId, 'in_review', f.people.engineer.userId);
-			await surveys.setStatus(t.db, f.organisationId, f.surveyId, 'approved', f.people.engineer.userId);
+			await transitionSurvey(t.db, { organisationId: f.organisationId, surveyId: f.surveyId, name: 'submit', actor: eng });
+			const r = await transitionSurvey(t.db, { organisationId: f.organisationId, surveyId: f.surveyId, name: 'approve', actor: eng });
+			expect(r.revision?.number).toBe(1);
 			const rows = await boards.listForSurvey(t.db, f.organisationId, f.surveyId);
 			expect(rows).toHaveLength(2);
 			expect(rows.every((b) => b.frozen_at !== null && b.survey_status === 'approved')).toBe(true);
 			const s = await surveys.get(t.db, f.organisationId, f.surveyId);
 			expect(s!.approved_by).toBe(f.people.engineer.userId);
-			await expect(surveys.setStatus(t.db, f.organisationId, f.surveyId, 'walking', null)).rejects.toThrow(/cannot move/);
-			await new Promise((r) => setTimeout(r, 100));
-			expect(heard).toEqual(expect.arrayContaining(f.boardIds));
+			await expect(transitionSurvey(t.db, { organisationId: f.organisationId, surveyId: f.surveyId, name: 'submit', actor: eng })).rejects.toMatchObject({
+				status: 409
+			});
+			await waitFor(() => f.boardIds.every((id) => heard.includes(id)), 'both boards announced');
 		} finally {
 			await listener.end();
 		}

@@ -1,12 +1,16 @@
 import { requirePage } from '$lib/server/auth/require';
 import { can } from '$lib/server/auth/guard';
 import { context } from '$lib/server/context';
+import { mentionsOf } from '$lib/server/review/comments';
+import { awaitingSurveys } from '$lib/server/review/awaiting';
+import { plainBody } from '$lib/survey/mentions';
+import { SETTLED_STATUSES } from '$lib/survey/states';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async ({ locals, url }) => {
 	const viewer = requirePage(locals, 'organisation.read', url);
 	const db = context().handle.db;
-	const [memberCount, openInvitations, mySurveys] = await Promise.all([
+	const [memberCount, openInvitations, mySurveys, awaiting, mentions] = await Promise.all([
 		db
 			.selectFrom('member')
 			.select((eb) => eb.fn.countAll<string>().as('n'))
@@ -30,10 +34,12 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 			.where('survey.organisation_id', '=', viewer.organisationId)
 			.where('survey_assignee.user_id', '=', viewer.userId)
 			.where('survey.archived_at', 'is', null)
-			.where('survey.status', '!=', 'approved')
+			.where('survey.status', 'not in', [...SETTLED_STATUSES])
 			.orderBy('survey.planned_date')
 			.limit(10)
-			.execute()
+			.execute(),
+		awaitingSurveys(db, viewer.organisationId, viewer.userId, viewer.role),
+		mentionsOf(db, viewer.organisationId, viewer.userId, 10)
 	]);
 	return {
 		welcome: url.searchParams.has('welcome'),
@@ -41,6 +47,16 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 		members: Number(memberCount.n),
 		openInvitations: Number(openInvitations.n),
 		canInvite: can(viewer.role, 'member.invite'),
+		awaiting,
+		mentions: mentions.map((m) => ({
+			id: m.id,
+			surveyId: m.survey_id,
+			surveyTitle: m.survey_title,
+			href: m.board_id && m.target_kind !== 'survey' ? `/surveys/${m.survey_id}/boards/${m.board_id}` : `/surveys/${m.survey_id}#comments`,
+			author: m.author_name ?? 'A former member',
+			excerpt: plainBody(m.body).slice(0, 200),
+			at: new Date(m.created_at).toISOString()
+		})),
 		mySurveys: mySurveys.map((x) => ({
 			id: x.id,
 			title: x.title,

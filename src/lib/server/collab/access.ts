@@ -2,6 +2,7 @@
 import type { DB } from '../db/index';
 import type { Role } from '../db/types';
 import { can } from '../auth/guard';
+import { boardAccess } from '../../survey/board-access';
 
 export interface BoardViewer {
 	userId: string;
@@ -21,10 +22,7 @@ export interface BoardAccess {
 	reason: string | null;
 }
 
-export const REASON_VIEWER = 'Your role can read this board but not change it.';
-export const REASON_APPROVED = 'This layout has been approved; the board is read-only.';
-export const REASON_ARCHIVED = 'This survey is archived; the board is read-only.';
-export const REASON_SESSION = 'Your session has ended. Sign in again to keep editing.';
+export { REASON_VIEWER, REASON_APPROVED, REASON_ARCHIVED, REASON_SESSION } from '../../survey/board-access';
 
 /**
  * The member's access to a board of their organisation, or null when the board does not exist,
@@ -56,21 +54,19 @@ export async function loadBoardAccess(db: DB, viewer: BoardViewer, boardId: stri
 		.executeTakeFirst();
 	if (!row || !can(row.role, 'board.read')) return null;
 	const sessionLive = row.session_expires_at !== null && new Date(row.session_expires_at).getTime() > Date.now();
-	const reason = !sessionLive
-		? REASON_SESSION
-		: !can(row.role, 'board.write')
-			? REASON_VIEWER
-			: row.frozen_at !== null || row.status === 'approved'
-				? REASON_APPROVED
-				: row.archived_at !== null
-					? REASON_ARCHIVED
-					: null;
+	const { readOnly, reason } = boardAccess({
+		role: row.role,
+		surveyStatus: row.status,
+		frozen: row.frozen_at !== null,
+		archived: row.archived_at !== null,
+		sessionLive
+	});
 	return {
 		boardId: row.id,
 		organisationId: row.organisation_id,
 		surveyId: row.survey_id,
 		role: row.role,
-		readOnly: reason !== null,
+		readOnly,
 		reason
 	};
 }

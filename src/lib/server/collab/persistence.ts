@@ -5,10 +5,10 @@ import type pg from 'pg';
 import { sql } from 'kysely';
 import * as Y from 'yjs';
 import type { DB } from '../db/index';
-import { PERMISSIONS } from '../auth/guard';
+import { writablePairs } from '../../survey/board-access';
 
-/** Roles allowed to change a board (the guard's 'board.write'). */
-const WRITER_ROLES = [...PERMISSIONS['board.write']];
+/** 'role:status' pairs that may write (the board-access policy, src/lib/survey/board-access.ts). */
+const WRITABLE_PAIRS = writablePairs();
 
 export interface PendingUpdate {
 	boardId: string;
@@ -40,8 +40,8 @@ const APPEND_SQL = `
 		join member m on m.organisation_id = b.organisation_id and m.user_id = v.user_id
 		join user_session us on us.id = v.session_id and us.user_id = v.user_id
 			and us.organisation_id = b.organisation_id and us.expires_at > now()
-		where b.frozen_at is null and s.status <> 'approved' and s.archived_at is null
-			and m.role = any($6::text[])
+		where b.frozen_at is null and s.archived_at is null
+			and (m.role || ':' || s.status) = any($6::text[])
 		-- Waits for an approval that holds the board row (FOR UPDATE) and re-checks frozen_at
 		-- against what it committed, so nothing lands on a board after its approval.
 		for key share of b
@@ -53,8 +53,8 @@ const APPEND_SQL = `
 
 /**
  * Appends updates in one statement, each only if, at this moment, the board belongs to the
- * organisation, is not frozen, its survey is neither approved nor archived, the session is live
- * and the member's role may write (the member row is read afresh for every update).
+ * organisation, is not frozen, its survey is not archived, the session is live and the board-access
+ * policy lets the member's role write in the survey's status (both read afresh for every update).
  * Returns, per update, its seq when stored or null when refused. The statement is its own
  * transaction: when the promise resolves the rows are committed. It runs as a named (prepared)
  * statement: planning this join costs more than running it.
@@ -70,7 +70,7 @@ export async function appendUpdates(db: Queryable, items: PendingUpdate[]): Prom
 			items.map((i) => i.userId),
 			items.map((i) => i.sessionId),
 			items.map((i) => i.organisationId),
-			WRITER_ROLES
+			WRITABLE_PAIRS
 		]
 	});
 	const out: (string | null)[] = items.map(() => null);

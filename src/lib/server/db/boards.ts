@@ -1,6 +1,7 @@
 // Boards: one live board per machine photo or drawing within a survey. The board's content is a
 // Yjs document kept by the collab layer (src/lib/server/collab); this module holds its metadata.
 import type { DB } from './index';
+import { isSettled } from '../../survey/board-access';
 import { announceBoardChange } from '../collab/notify';
 import { readDocument } from '../collab/persistence';
 
@@ -56,7 +57,7 @@ export async function create(db: DB, organisationId: string, input: { surveyId: 
 			.where('id', '=', input.surveyId)
 			.executeTakeFirst();
 		if (!survey) return null;
-		if (survey.status === 'approved' || survey.archived_at) throw new BoardRuleError('An approved or archived survey takes no new boards.');
+		if (isSettled(survey.status) || survey.archived_at) throw new BoardRuleError('An approved, closed or archived survey takes no new boards.');
 		const inSurvey = await trx
 			.selectFrom('survey_machine')
 			.select('machine_id')

@@ -8,6 +8,7 @@ import * as surveys from './surveys';
 import * as boards from './boards';
 import { DEMO_SITE } from './seed-register';
 import { writeDemoBoard } from './seed-board';
+import { transitionSurvey } from '../review/workflow';
 
 export const DEMO_SURVEY = 'Site walk: raw water and aeration (demo)';
 
@@ -51,7 +52,8 @@ export async function seedSurvey(db: DB, organisationId: string) {
 		]
 	});
 	if (!survey) return null;
-	await surveys.setStatus(db, organisationId, survey.id, 'walking', engineer?.id ?? null);
+	if (engineer) await transitionSurvey(db, { organisationId, surveyId: survey.id, name: 'start', actor: { userId: engineer.id, role: 'engineer' } });
+	else await db.updateTable('survey').set({ status: 'walking' }).where('id', '=', survey.id).execute();
 
 	const photo = await db
 		.selectFrom('media')

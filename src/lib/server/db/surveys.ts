@@ -1,27 +1,10 @@
 // Surveys: a planned walk of some machines of one site, with the people assigned to it.
-// Status moves planned → walking → in_review → approved; review can send it back to walking.
-// Approval freezes every board of the survey (the live board turns read-only at once).
+// Status moves (and archiving) go through the review workflow (src/lib/server/review/workflow.ts),
+// which checks the transition table in src/lib/survey/states.ts and keeps the audit trail.
 import { sql } from 'kysely';
 import type { DB } from './index';
 import type { SurveyAssigneeRole, SurveyStatus } from './types';
-import { announceBoardChange } from '../collab/notify';
-
-export const SURVEY_STATUSES: readonly SurveyStatus[] = ['planned', 'walking', 'in_review', 'approved'] as const;
-
-export const SURVEY_STATUS_LABEL: Record<SurveyStatus, string> = {
-	planned: 'Planned',
-	walking: 'Site walk',
-	in_review: 'In review',
-	approved: 'Approved'
-};
-
-/** Which status may follow which. */
-export const SURVEY_TRANSITIONS: Record<SurveyStatus, readonly SurveyStatus[]> = {
-	planned: ['walking'],
-	walking: ['in_review', 'planned'],
-	in_review: ['approved', 'walking'],
-	approved: []
-};
+export { SURVEY_STATUSES, SURVEY_STATUS_LABEL } from '../../survey/states';
 
 export class SurveyRuleError extends Error {}
 
@@ -128,70 +111,6 @@ export async function update(db: DB, organisationId: string, id: string, input: 
 		.returning('id')
 		.executeTakeFirst();
 	return Boolean(r);
-}
-
-/**
- * Moves a survey to the next status. Approval stamps who and when and freezes every board of
- * the survey in the same transaction; the live board hears of it on commit.
- */
-export async function setStatus(db: DB, organisationId: string, id: string, status: SurveyStatus, by: string | null) {
-	return db.transaction().execute(async (trx) => {
-		const s = await trx
-			.selectFrom('survey')
-			.select(['id', 'status', 'archived_at'])
-			.where('organisation_id', '=', organisationId)
-			.where('id', '=', id)
-			.forUpdate()
-			.executeTakeFirst();
-		if (!s) return null;
-		if (s.archived_at) throw new SurveyRuleError('An archived survey cannot change status.');
-		if (!SURVEY_TRANSITIONS[s.status].includes(status)) {
-			throw new SurveyRuleError(`A survey that is ${SURVEY_STATUS_LABEL[s.status].toLowerCase()} cannot move to ${SURVEY_STATUS_LABEL[status].toLowerCase()}.`);
-		}
-		const now = new Date();
-		await trx
-			.updateTable('survey')
-			.set({ status, updated_at: now, ...(status === 'approved' ? { approved_at: now, approved_by: by } : {}) })
-			.where('id', '=', id)
-			.execute();
-		// Lock the boards first (FOR UPDATE waits for updates being appended right now), so
-		// nothing lands on a board after its approval.
-		const boards = await trx
-			.selectFrom('board')
-			.select('id')
-			.where('organisation_id', '=', organisationId)
-			.where('survey_id', '=', id)
-			.forUpdate()
-			.execute();
-		if (status === 'approved') {
-			await trx.updateTable('board').set({ frozen_at: now }).where('survey_id', '=', id).where('frozen_at', 'is', null).execute();
-		}
-		await announceBoardChange(
-			trx,
-			boards.map((b) => b.id)
-		);
-		return { id, status };
-	});
-}
-
-export async function archive(db: DB, organisationId: string, id: string) {
-	return db.transaction().execute(async (trx) => {
-		const r = await trx
-			.updateTable('survey')
-			.set({ archived_at: new Date(), updated_at: new Date() })
-			.where('organisation_id', '=', organisationId)
-			.where('id', '=', id)
-			.where('archived_at', 'is', null)
-			.returning('id')
-			.executeTakeFirst();
-		if (!r) return false;
-		const boards = await trx.selectFrom('board').select('id').where('survey_id', '=', id).execute();
-		await announceBoardChange(
-			trx,
-			boards.map((b) => b.id)
-		);
-		return true;
-	});
 }
 
 async function writeMachines(trx: DB, organisationId: string, surveyId: string, siteId: string, machineIds: string[]) {

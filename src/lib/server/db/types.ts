@@ -69,7 +69,7 @@ export interface AuditEventTable {
 
 /** 'recipient': only the mailbox owner may see it; 'organisation': the sending organisation's outbox lists it. */
 export type MailAudience = 'recipient' | 'organisation';
-export type MailPurpose = 'invitation' | 'password-reset' | 'reset-no-account' | 'sign-up' | 'sign-up-existing' | 'other';
+export type MailPurpose = 'invitation' | 'password-reset' | 'reset-no-account' | 'sign-up' | 'sign-up-existing' | 'mention' | 'other';
 
 export interface MailOutboxTable {
 	id: Generated<string>;
@@ -224,7 +224,9 @@ export interface MediaTable {
 }
 
 // Surveys and live boards (migration 20261201110000_surveys).
-export type SurveyStatus = 'planned' | 'walking' | 'in_review' | 'approved';
+export type { SurveyStatus } from '../../survey/states';
+import type { SurveyStatus } from '../../survey/states';
+import type { ReviewTables } from './review-types';
 export type SurveyAssigneeRole = 'engineer' | 'technician';
 /** bigint columns come back as strings (pg does not narrow them to number); optional on insert. */
 type Bigint = ColumnType<string, string | number | bigint | undefined, string | number | bigint>;
@@ -291,7 +293,7 @@ export interface BoardClientTable {
 	claimed_at: Generated<Date>;
 }
 
-export interface Database {
+export interface Database extends ReviewTables {
 	organisation: OrganisationTable;
 	app_user: AppUserTable;
 	member: MemberTable;

@@ -3,12 +3,16 @@ import { can } from '$lib/server/auth/guard';
 import { context } from '$lib/server/context';
 import * as surveys from '$lib/server/db/surveys';
 import { assignedSurveyIds, machinesWithBoards } from '$lib/server/db/survey-progress';
+import { SURVEY_STATUS_TONE } from '$lib/survey/states';
 import type { PageServerLoad } from './$types';
 
 /** The next thing to do on a survey, in a few words. */
 function nextStep(s: { status: string; machines: number; machinesWithBoard: number }): string {
 	if (s.status === 'approved') return 'Approved: issue the installation jobs.';
-	if (s.status === 'in_review') return 'Waiting for the engineer’s review.';
+	if (s.status === 'jobs_issued') return 'Jobs issued: install and record.';
+	if (s.status === 'closed') return 'Closed.';
+	if (s.status === 'submitted') return 'Waiting for the engineer’s review.';
+	if (s.status === 'changes_requested') return 'Changes requested: make them and submit again.';
 	if (s.machines === 0) return 'Pick the machines to walk.';
 	const missing = s.machines - s.machinesWithBoard;
 	if (missing > 0) return `${missing} of ${s.machines} ${s.machines === 1 ? 'machine has' : 'machines have'} no board yet: photograph and mark ${missing === 1 ? 'it' : 'them'}.`;
@@ -32,6 +36,7 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 			siteName: s.site_name,
 			status: s.status,
 			statusLabel: surveys.SURVEY_STATUS_LABEL[s.status],
+			statusTone: SURVEY_STATUS_TONE[s.status],
 			plannedDate: s.planned_date,
 			machines,
 			boards: Number(s.board_count ?? 0),

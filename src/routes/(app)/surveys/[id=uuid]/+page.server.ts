@@ -14,6 +14,14 @@ import { mediaContext } from '$lib/server/media/context';
 import { MediaError } from '$lib/server/media/process';
 import { storeUpload } from '$lib/server/media/service';
 import { RegisterError } from '$lib/server/db/register';
+import { availableTransitions, isTransitionName, SURVEY_STATUS_LABEL, SURVEY_STATUS_TONE, TRANSITIONS } from '$lib/survey/states';
+import { surveyTodo } from '$lib/survey/todo';
+import { transitionSurvey, listTransitions, WorkflowError } from '$lib/server/review/workflow';
+import { surveyOpenItems } from '$lib/server/review/open-items';
+import { listRevisions } from '$lib/server/review/revisions';
+import { listThreads, mentionableMembers } from '$lib/server/review/comments';
+import { boardAccess, isSettled } from '$lib/survey/board-access';
+import type { Role, SurveyStatus } from '$lib/server/db/types';
 import type { Actions, PageServerLoad } from './$types';
 
 const uploadFail = (status: number, error: string, machineId: string | null = null) => fail(status, { action: 'upload' as const, error, machineId });
@@ -25,19 +33,24 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 	const survey = await surveys.get(db, viewer.organisationId, params.id);
 	if (!survey) error(404, 'No such survey in your organisation.');
 	const canPlan = can(viewer.role, 'survey.plan');
-	const [machines, assignees, boardRows, siteMachines, people] = await Promise.all([
+	const [machines, assignees, boardRows, siteMachines, people, openItems, history, revisions, threads, mentionable] = await Promise.all([
 		surveys.listMachines(db, viewer.organisationId, survey.id),
 		surveys.listAssignees(db, viewer.organisationId, survey.id),
 		boards.listForSurvey(db, viewer.organisationId, survey.id),
 		canPlan ? machinesBySite(db, viewer.organisationId) : Promise.resolve([]),
-		canPlan ? members.list(db, viewer.organisationId) : Promise.resolve([])
+		canPlan ? members.list(db, viewer.organisationId) : Promise.resolve([]),
+		surveyOpenItems(db, viewer.organisationId, survey.id),
+		listTransitions(db, viewer.organisationId, survey.id),
+		listRevisions(db, viewer.organisationId, survey.id),
+		listThreads(db, viewer.organisationId, survey.id, { targetKind: 'survey' }),
+		mentionableMembers(db, viewer.organisationId)
 	]);
 	const media = await mediaForMachines(
 		db,
 		viewer.organisationId,
 		machines.map((m) => m.id)
 	);
-	const open = survey.status !== 'approved' && !survey.archived_at;
+	const open = !isSettled(survey.status) && !survey.archived_at;
 	const machineList = machines.map((m) => ({
 		id: m.id,
 		name: m.name,
@@ -47,17 +60,35 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		media: media.filter((x) => x.machineId === m.id),
 		boards: boardRows
 			.filter((b) => b.machine_id === m.id)
-			.map((b) => ({ id: b.id, title: b.title, mediaId: b.media_id, frozen: b.frozen_at !== null }))
+			.map((b) => ({
+				id: b.id,
+				title: b.title,
+				mediaId: b.media_id,
+				// Read-only for this reader (the board-access policy), shown on the button.
+				frozen: boardAccess({ role: viewer.role, surveyStatus: survey.status, frozen: b.frozen_at !== null, archived: survey.archived_at !== null, sessionLive: true }).readOnly
+			}))
 	}));
-	const left: string[] = [];
-	if (machineList.length === 0) left.push('Pick the machines to walk (edit the plan below).');
-	if (!assignees.some((a) => a.role === 'technician')) left.push('Assign at least one technician to walk the site.');
-	if (!assignees.some((a) => a.role === 'engineer')) left.push('Assign the engineer who reviews and approves.');
+	const planLines: string[] = [];
+	if (machineList.length === 0) planLines.push('Pick the machines to walk (edit the plan below).');
+	if (!assignees.some((a) => a.role === 'technician')) planLines.push('Assign at least one technician to walk the site.');
+	if (!assignees.some((a) => a.role === 'engineer')) planLines.push('Assign the engineer who reviews and approves.');
 	for (const m of machineList) {
-		if (m.media.length === 0) left.push(`${m.name}: take a photo or add a drawing, then open its board.`);
-		else if (m.boards.length === 0) left.push(`${m.name}: open a board on one of its photos and mark the points.`);
+		if (m.media.length === 0) planLines.push(`${m.name}: take a photo or add a drawing, then open its board.`);
+		else if (m.boards.length === 0) planLines.push(`${m.name}: open a board on one of its photos and mark the points.`);
 	}
-	if (survey.status === 'planned' && machineList.length > 0) left.push('Start the site walk when the team is on site.');
+	const lastChanges = [...history].reverse().find((h) => h.transition === 'request_changes');
+	const left = surveyTodo({
+		role: viewer.role,
+		status: survey.status,
+		archived: survey.archived_at !== null,
+		planLines,
+		boards: openItems,
+		changesReason: survey.status === 'changes_requested' ? (lastChanges?.note ?? null) : null
+	});
+	const exceptions = openItems.flatMap((b) => [
+		...b.undecided.map((p) => ({ board: b.title, label: p.label, status: p.status })),
+		...b.rejected.map((p) => ({ board: b.title, label: p.label, status: 'rejected' }))
+	]);
 	return {
 		survey: {
 			id: survey.id,
@@ -65,7 +96,8 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 			siteId: survey.site_id,
 			siteName: survey.site_name,
 			status: survey.status,
-			statusLabel: surveys.SURVEY_STATUS_LABEL[survey.status],
+			statusLabel: SURVEY_STATUS_LABEL[survey.status],
+			statusTone: SURVEY_STATUS_TONE[survey.status],
 			plannedDate: survey.planned_date,
 			notes: survey.notes,
 			archived: survey.archived_at !== null
@@ -75,9 +107,28 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		left,
 		open,
 		canPlan: canPlan && open,
-		canBoard: can(viewer.role, 'board.write') && open,
-		canUpload: can(viewer.role, 'media.upload') && open,
-		canStart: can(viewer.role, 'board.write') && survey.status === 'planned' && !survey.archived_at,
+		canBoard: mayChangeBoards(viewer.role, survey),
+		canUpload: can(viewer.role, 'media.upload') && mayChangeBoards(viewer.role, survey),
+		transitions: availableTransitions(viewer.role, survey.status, survey.archived_at !== null).map((t) => ({ name: t.name, label: t.label, note: t.note })),
+		exceptions,
+		history: history.map((h) => ({
+			id: h.id,
+			who: h.actor_name ?? 'A former member',
+			role: h.actor_role,
+			what: TRANSITIONS[h.transition]?.done ?? h.transition,
+			from: SURVEY_STATUS_LABEL[h.from_status] ?? h.from_status,
+			to: SURVEY_STATUS_LABEL[h.to_status] ?? h.to_status,
+			note: h.note,
+			at: new Date(h.created_at).toISOString()
+		})),
+		revisions: revisions.map((r) => ({
+			number: r.number,
+			approvedAt: new Date(r.approved_at).toISOString(),
+			approver: r.approver_name ?? 'A former member',
+			note: r.note,
+			exceptions: Array.isArray(r.confirmed_exceptions) ? r.confirmed_exceptions.length : 0
+		})),
+		comments: { threads, members: mentionable, canWrite: can(viewer.role, 'comment.write'), viewerId: viewer.userId },
 		plan: canPlan
 			? {
 					machines: siteMachines
@@ -110,6 +161,7 @@ export const actions: Actions = {
 		const db = context().handle.db;
 		const survey = await surveys.get(db, viewer.organisationId, params.id);
 		if (!survey) error(404, 'No such survey in your organisation.');
+		if (!mayChangeBoards(viewer.role, survey)) return fail(409, { action: 'board' as const, error: boardsClosedReason(viewer.role, survey) });
 		const title = parsed.data.title || (await defaultTitle(viewer.organisationId, parsed.data.mediaId));
 		let created: { id: string } | null;
 		try {
@@ -128,6 +180,7 @@ export const actions: Actions = {
 		const db = context().handle.db;
 		const survey = await surveys.get(db, viewer.organisationId, params.id);
 		if (!survey) error(404, 'No such survey in your organisation.');
+		if (!mayChangeBoards(viewer.role, survey)) return uploadFail(409, boardsClosedReason(viewer.role, survey));
 		let fd: FormData;
 		try {
 			fd = await request.formData();
@@ -210,20 +263,40 @@ export const actions: Actions = {
 		return { action: 'plan' as const, saved: true };
 	},
 
-	start: async ({ locals, params, url }) => {
-		const viewer = requirePage(locals, 'board.write', url);
+	transition: async ({ locals, params, request, url }) => {
+		const viewer = requirePage(locals, 'survey.read', url);
+		const fd = await request.formData();
+		const name = fd.get('name');
+		const note = String(fd.get('note') ?? '');
+		if (!isTransitionName(name)) return fail(400, { action: 'transition' as const, error: 'Choose what to do with the survey.', name: null, note });
 		const db = context().handle.db;
 		try {
-			const r = await surveys.setStatus(db, viewer.organisationId, params.id, 'walking', viewer.userId);
-			if (!r) error(404, 'No such survey in your organisation.');
+			await transitionSurvey(db, {
+				organisationId: viewer.organisationId,
+				surveyId: params.id,
+				name,
+				actor: { userId: viewer.userId, role: viewer.role },
+				note,
+				confirmExceptions: fd.get('confirm') === '1'
+			});
 		} catch (e) {
-			if (e instanceof surveys.SurveyRuleError) return fail(409, { action: 'start' as const, error: e.message });
+			if (e instanceof WorkflowError) {
+				if (e.status === 404) error(404, e.message);
+				return fail(e.status, { action: 'transition' as const, error: e.message, name, note, needsConfirmation: Boolean(e.exceptions?.length) });
+			}
 			throw e;
 		}
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'survey.walk-started', subjectType: 'survey', subjectId: params.id });
-		return { action: 'start' as const, started: true };
+		return { action: 'transition' as const, done: name };
 	}
 };
+
+/** New boards and photos follow the board-access policy: not while a technician's survey is under review. */
+function mayChangeBoards(role: Role, survey: { status: SurveyStatus; archived_at: unknown }) {
+	return !boardAccess({ role, surveyStatus: survey.status, frozen: false, archived: survey.archived_at !== null, sessionLive: true }).readOnly;
+}
+function boardsClosedReason(role: Role, survey: { status: SurveyStatus; archived_at: unknown }) {
+	return boardAccess({ role, surveyStatus: survey.status, frozen: false, archived: survey.archived_at !== null, sessionLive: true }).reason ?? '';
+}
 
 async function defaultTitle(organisationId: string, mediaId: string | null): Promise<string> {
 	if (!mediaId) return 'Sketch board';

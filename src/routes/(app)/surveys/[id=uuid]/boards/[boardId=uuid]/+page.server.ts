@@ -1,6 +1,7 @@
 import { error } from '@sveltejs/kit';
 import { requirePage } from '$lib/server/auth/require';
 import { can } from '$lib/server/auth/guard';
+import { boardAccess, isSettled } from '$lib/survey/board-access';
 import { context } from '$lib/server/context';
 import * as boards from '$lib/server/db/boards';
 import { getMachine } from '$lib/server/db/machines';
@@ -8,6 +9,7 @@ import { getMedia } from '$lib/server/db/media';
 import { listSupplyPoints } from '$lib/server/db/register';
 import { getThresholds } from '$lib/server/db/thresholds';
 import type { BoardContext } from '$lib/board/types';
+import { mentionableMembers } from '$lib/server/review/comments';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async ({ locals, params, url }) => {
@@ -17,13 +19,22 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 	if (!board || board.survey_id !== params.id) error(404, 'No such board in your organisation.');
 	const machine = await getMachine(db, viewer.organisationId, board.machine_id);
 	if (!machine) error(404, 'The machine of this board is not in your organisation.');
-	const [media, supply, thresholds] = await Promise.all([
+	const [media, supply, thresholds, members] = await Promise.all([
 		board.media_id ? getMedia(db, viewer.organisationId, board.media_id) : Promise.resolve(null),
 		// The 24 V DC supplies of the machine's area, or of its site when it has no area.
 		listSupplyPoints(db, viewer.organisationId, machine.areaId ? { areaId: machine.areaId } : { siteId: machine.siteId }),
-		getThresholds(db, viewer.organisationId)
+		getThresholds(db, viewer.organisationId),
+		mentionableMembers(db, viewer.organisationId)
 	]);
-	const frozen = board.frozen_at !== null || board.survey_status === 'approved' || board.survey_archived_at !== null;
+	// The session is live: hooks signed this request in.
+	const access = boardAccess({
+		role: viewer.role,
+		surveyStatus: board.survey_status,
+		frozen: board.frozen_at !== null,
+		archived: board.survey_archived_at !== null,
+		sessionLive: true
+	});
+	const frozen = board.frozen_at !== null || isSettled(board.survey_status) || board.survey_archived_at !== null;
 	const ctx: BoardContext = {
 		boardId: board.id,
 		title: board.title,
@@ -46,9 +57,14 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		// Stored overrides as they are: the rule engine reports bad ones as findings.
 		thresholds: thresholds.overrides as Record<string, unknown>,
 		user: { id: viewer.userId, name: viewer.name, role: viewer.role },
-		canEdit: can(viewer.role, 'board.write') && !frozen,
+		canEdit: !access.readOnly,
 		canDecide: can(viewer.role, 'review.decide'),
 		frozen
 	};
-	return { ctx };
+	return {
+		ctx,
+		access: { readOnly: access.readOnly, reason: access.reason, surveyStatus: board.survey_status },
+		// For CommentThread on the board (survey, board, point and route comments).
+		comments: { surveyId: board.survey_id, boardId: board.id, members, canWrite: can(viewer.role, 'comment.write') }
+	};
 };
