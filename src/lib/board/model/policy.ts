@@ -136,7 +136,7 @@ const ROOT_KIND: Readonly<Record<string, ItemKind>> = { [MAP_POINTS]: 'point', [
 const META_KEYS: ReadonlySet<string> = new Set([META_SCALE]);
 /** Ids the model makes (newId: 24 hex digits), with room for other short, plain ids. */
 const ITEM_ID = /^[A-Za-z0-9_-]{1,64}$/;
-const DECISION_KEYS: ReadonlySet<string> = new Set(['decidedBy', 'decidedByName', 'decidedAt']);
+const DECISION_KEYS: ReadonlySet<string> = new Set(['decidedBy', 'decidedByName', 'decidedAt', 'decisionReason', 'decisionNote']);
 
 type FieldSchema = z.ZodType;
 const SHAPES: Readonly<Record<ItemKind, Readonly<Record<string, FieldSchema>>>> = {
