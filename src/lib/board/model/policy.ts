@@ -88,7 +88,6 @@ export type RefusalCode =
 	| 'rights.decided-point'
 	| 'rights.decided-route'
 	| 'rights.scale'
-	| 'rights.attribution'
 	| 'schema.value'
 	| 'schema.unknown-key'
 	| 'schema.missing-key'
@@ -712,11 +711,6 @@ function judge(
 						});
 					}
 				}
-			}
-			// A change is signed with the name of whoever makes it, never someone else's.
-			if (ma && changed.includes('updatedBy') && ma.get('updatedBy') !== actor.name) {
-				out.push({ kind, id, field: 'updatedBy', code: 'rights.attribution', reason: 'A change can only carry your own name.' });
-				continue;
 			}
 			if (decider) continue;
 
