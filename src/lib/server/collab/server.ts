@@ -68,6 +68,12 @@ interface RoomMember {
 	/** Bytes of updates and presence (budget.ts). */
 	bytes: ByteBucket;
 	syncRequests: TokenBucket;
+	/**
+	 * The socket's updates are checked and handed to the writer one after another, in the order
+	 * they came: a client-id lookup in the database must not let a later update overtake an
+	 * earlier one (the sender takes an acknowledgement as covering everything before it).
+	 */
+	pending: Promise<void>;
 }
 
 class BoardRoom {
@@ -475,6 +481,13 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		maybeCompact(room);
 	}
 
+	function storeFailed(member: RoomMember) {
+		return (e: unknown) => {
+			log.error(`[collab] storing an update from ${who(member.socket)} failed:`, e);
+			closeSocket(member.socket, `message could not be handled: ${(e as Error)?.message ?? String(e)}`);
+		};
+	}
+
 	function dropShadow(room: BoardRoom) {
 		room.shadow?.destroy();
 		room.shadow = null;
@@ -569,17 +582,27 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 					log.warn(`[collab] refused an update from ${who(member.socket)}: the board would pass ${options.maxDocumentBytes} bytes`);
 					return reply({ ok: false, refused: reason, readOnly: false });
 				}
-				if (member.readOnly) return storeUpdate(room, member, message.update, reply);
-				const refusal = checkPolicy(room, member, message.update);
-				if (refusal) {
-					log.warn(`[collab] refused an update from ${who(member.socket)}: ${refusal}`);
-					return reply({ ok: false, refused: refusal, readOnly: false });
-				}
-				return checkClientIds(room, member, decoded).then((forged) => {
-					if (!forged) return storeUpdate(room, member, message.update, reply);
-					dropShadow(room);
-					reply({ ok: false, refused: forged, readOnly: false });
+				const update = message.update;
+				const step = member.pending.then(async () => {
+					if (member.readOnly) {
+						void storeUpdate(room, member, update, reply).catch(storeFailed(member));
+						return;
+					}
+					const refusal = checkPolicy(room, member, update);
+					if (refusal) {
+						log.warn(`[collab] refused an update from ${who(member.socket)}: ${refusal}`);
+						return reply({ ok: false, refused: refusal, readOnly: false });
+					}
+					const forged = await checkClientIds(room, member, decoded);
+					if (forged) {
+						dropShadow(room);
+						return reply({ ok: false, refused: forged, readOnly: false });
+					}
+					// Handed to the writer now (in order); its commit is awaited apart from the queue.
+					void storeUpdate(room, member, update, reply).catch(storeFailed(member));
 				});
+				member.pending = step.catch(() => {});
+				return step;
 			}
 			case 'awareness': {
 				// Presence is passing news: over the budget it is dropped, not kept.
@@ -643,7 +666,8 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 					reason: access.reason,
 					clientIds: new Set(),
 					bytes,
-					syncRequests: new TokenBucket(SYNC_REQUESTS_PER_SECOND, SYNC_REQUEST_BURST)
+					syncRequests: new TokenBucket(SYNC_REQUESTS_PER_SECOND, SYNC_REQUEST_BURST),
+					pending: Promise.resolve()
 				});
 				socket.join(roomOf(boardId));
 				reply({
