@@ -136,6 +136,29 @@ describe('review and approval', () => {
 		const revision = await t.db.selectFrom('revision_point').select(['label', 'status', 'y']).orderBy('label').execute();
 		const stored = (await readBoardContent(t.db, boardId)).points;
 		expect(revision.map((r) => [r.label, r.status, Number(r.y)])).toEqual(stored.map((p) => [p.label, p.status, p.y]));
+	});
+
+	it('after reopening, the board shows what moved since the approved revision', async () => {
+		await transition(engineer, 'Reopen for changes', 'P2 sits on a lifting eye; move it.');
+		await expect.poll(status).toBe('walking');
+		await engineer.page.goto(boardUrl);
+		await waitLive(engineer);
+		await openPoint(engineer, 'P2'); // centres P2
+		const box = (await engineer.page.getByTestId('board-canvas').boundingBox())!;
+		await engineer.page.mouse.move(box.x + box.width * 0.5, box.y + box.height * 0.5);
+		await engineer.page.mouse.down();
+		await engineer.page.mouse.move(box.x + box.width * 0.6, box.y + box.height * 0.5, { steps: 8 });
+		await engineer.page.mouse.up();
+		await waitLive(engineer);
+		await engineer.page.keyboard.press('Escape');
+		await engineer.page.getByRole('tab', { name: 'To do' }).click();
+		await engineer.page.getByTestId('compare-links').getByRole('link', { name: 'Compare with revision 1' }).click();
+		await expect.poll(() => engineer.page.getByTestId('revision-compare').textContent(), { timeout: 15_000 }).toContain('1 moved (P2)');
+		await expect
+			.poll(() =>
+				engineer.page.evaluate(() => (window as unknown as { Konva: { stages: Array<{ find(s: string): unknown[] }> } }).Konva.stages[0].find('.revision-ghost').length)
+			)
+			.toBe(1);
 		const errors = [...engineer.errors, ...tech.errors].filter((e) => !/favicon/.test(e));
 		expect(errors).toEqual([]);
 	});

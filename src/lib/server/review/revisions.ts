@@ -331,3 +331,29 @@ export async function compareStored(db: DB, organisationId: string, surveyId: st
 	if (!a || !b) return null;
 	return compareRevisions(comparableOf(a), comparableOf(b));
 }
+
+/** Revision numbers of a survey, newest first. */
+export async function revisionNumbers(db: DB, organisationId: string, surveyId: string): Promise<number[]> {
+	const rows = await db
+		.selectFrom('survey_revision')
+		.select('number')
+		.where('organisation_id', '=', organisationId)
+		.where('survey_id', '=', surveyId)
+		.orderBy('number', 'desc')
+		.execute();
+	return rows.map((r) => Number(r.number));
+}
+
+/** The points of one board as revision `number` approved them (for the board's before/after overlay). */
+export async function revisionPointsOfBoard(db: DB, organisationId: string, surveyId: string, boardId: string, number: number) {
+	return db
+		.selectFrom('revision_point')
+		.innerJoin('revision_board', 'revision_board.id', 'revision_point.revision_board_id')
+		.innerJoin('survey_revision', 'survey_revision.id', 'revision_board.revision_id')
+		.select(['revision_point.point_id as id', 'revision_point.label', 'revision_point.x', 'revision_point.y', 'revision_point.status'])
+		.where('survey_revision.organisation_id', '=', organisationId)
+		.where('survey_revision.survey_id', '=', surveyId)
+		.where('survey_revision.number', '=', number)
+		.where('revision_board.board_id', '=', boardId)
+		.execute();
+}

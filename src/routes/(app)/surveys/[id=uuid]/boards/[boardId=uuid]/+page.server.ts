@@ -10,6 +10,7 @@ import { listSupplyPoints } from '$lib/server/db/register';
 import { getThresholds } from '$lib/server/db/thresholds';
 import type { BoardContext } from '$lib/board/types';
 import { mentionableMembers } from '$lib/server/review/comments';
+import { revisionNumbers, revisionPointsOfBoard } from '$lib/server/review/revisions';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async ({ locals, params, url }) => {
@@ -19,12 +20,17 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 	if (!board || board.survey_id !== params.id) error(404, 'No such board in your organisation.');
 	const machine = await getMachine(db, viewer.organisationId, board.machine_id);
 	if (!machine) error(404, 'The machine of this board is not in your organisation.');
-	const [media, supply, thresholds, members] = await Promise.all([
+	// ?compare=N draws revision N's points over the board (before and after).
+	const compareRaw = url.searchParams.get('compare');
+	const compareNumber = compareRaw && /^[1-9]\d{0,5}$/.test(compareRaw) ? Number(compareRaw) : null;
+	const [media, supply, thresholds, members, revisions, comparePoints] = await Promise.all([
 		board.media_id ? getMedia(db, viewer.organisationId, board.media_id) : Promise.resolve(null),
 		// The 24 V DC supplies of the machine's area, or of its site when it has no area.
 		listSupplyPoints(db, viewer.organisationId, machine.areaId ? { areaId: machine.areaId } : { siteId: machine.siteId }),
 		getThresholds(db, viewer.organisationId),
-		mentionableMembers(db, viewer.organisationId)
+		mentionableMembers(db, viewer.organisationId),
+		revisionNumbers(db, viewer.organisationId, board.survey_id),
+		compareNumber ? revisionPointsOfBoard(db, viewer.organisationId, board.survey_id, board.id, compareNumber) : Promise.resolve(null)
 	]);
 	// The session is live: hooks signed this request in.
 	const access = boardAccess({
@@ -65,6 +71,11 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		ctx,
 		access: { readOnly: access.readOnly, reason: access.reason, surveyStatus: board.survey_status },
 		// For CommentThread on the board (survey, board, point and route comments).
-		comments: { surveyId: board.survey_id, boardId: board.id, members, canWrite: can(viewer.role, 'comment.write') }
+		comments: { surveyId: board.survey_id, boardId: board.id, members, canWrite: can(viewer.role, 'comment.write') },
+		revisions,
+		compare:
+			compareNumber && revisions.includes(compareNumber) && comparePoints
+				? { number: compareNumber, points: comparePoints.map((p) => ({ id: p.id, label: p.label, x: Number(p.x), y: Number(p.y), status: p.status })) }
+				: null
 	};
 };
