@@ -9,7 +9,7 @@ import { ORIGIN_CATCH_UP } from './room';
 import { readMissing } from './persistence';
 
 export async function catchUp(ctx: CollabContext) {
-	if (ctx.closed || ctx.cluster.others === 0) return;
+	if (ctx.closed || !ctx.cluster.enabled || (await ctx.cluster.refresh()) === 0) return;
 	for (const room of ctx.rooms.values()) {
 		if (room.state !== 'ready' || room.members.size === 0) continue;
 		try {

@@ -1,7 +1,9 @@
 // How many other server processes share this database, for the relays: with none, nothing is
 // sent to them. Asked through the adapter's public serverCount() (the PostgreSQL adapter counts
-// the nodes it has heard a heartbeat from); it is async, so the answer is kept and refreshed on a
-// timer and whenever another process speaks.
+// the nodes it has heard from within its heartbeat timeout). It is async: a relay asks it afresh
+// before sending (`toOthers`; in order, the PostgreSQL adapter answers at once), and the last
+// answer is kept, refreshed on a timer and whenever another process speaks, for code that must
+// decide at once (`others`).
 import type { Server } from 'socket.io';
 
 /** Events between the processes (socket.io serverSideEmit). */
@@ -37,12 +39,21 @@ export class ClusterView {
 		void this.refresh();
 	}
 
-	async refresh() {
+	async refresh(): Promise<number> {
 		try {
 			this.#others = Math.max(0, (await this.io.of('/').adapter.serverCount()) - 1);
 		} catch {
 			// Keep the last count; the next round asks again.
 		}
+		return this.#others;
+	}
+
+	/** Runs `send` if any other process is there now (never for a live board alone). */
+	toOthers(send: () => void) {
+		if (!this.enabled) return;
+		void this.refresh().then((n) => {
+			if (n > 0) send();
+		});
 	}
 
 	close() {

@@ -26,8 +26,8 @@ export function wirePresence(ctx: CollabContext, room: BoardRoom) {
 		(typeof origin === 'string' && room.members.has(origin) ? local.except(origin) : local).emit(EVENT_MESSAGE, awarenessFrame(update));
 		// What a socket here did is news for the other processes; their own relays and
 		// time-outs are not.
-		if (ctx.cluster.others > 0 && (room.members.has(origin as string) || origin === ORIGIN_LEAVE)) {
-			ctx.io.serverSideEmit(RELAY_AWARENESS, room.id, Buffer.from(update).toString('base64'));
+		if (room.members.has(origin as string) || origin === ORIGIN_LEAVE) {
+			ctx.cluster.toOthers(() => ctx.io.serverSideEmit(RELAY_AWARENESS, room.id, Buffer.from(update).toString('base64')));
 		}
 	});
 }

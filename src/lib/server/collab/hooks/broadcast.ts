@@ -19,13 +19,11 @@ export function publishStored(ctx: CollabContext, room: BoardRoom, seq: string, 
 	}
 	const local = ctx.io.local.to(roomOf(room.id));
 	(exceptSocket ? local.except(exceptSocket) : local).emit(EVENT_MESSAGE, syncUpdateFrame(update));
-	if (ctx.cluster.others > 0) {
-		// Base64 in JSON goes through NOTIFY directly; raw bytes would take the adapter's
-		// attachment-table path (an INSERT and a SELECT per message). Alone, nothing is sent:
-		// a process that starts announces itself before it takes connections, and the log
-		// re-read (catch-up.ts) covers the moment before the others have heard of it.
-		ctx.io.serverSideEmit(RELAY_UPDATE, room.id, seq, Buffer.from(update).toString('base64'));
-	}
+	// Base64 in JSON goes through NOTIFY directly; raw bytes would take the adapter's
+	// attachment-table path (an INSERT and a SELECT per message). Alone, nothing is sent:
+	// a process that starts announces itself before it takes connections, and the log
+	// re-read (catch-up.ts) covers the moment before the others have heard of it.
+	ctx.cluster.toOthers(() => ctx.io.serverSideEmit(RELAY_UPDATE, room.id, seq, Buffer.from(update).toString('base64')));
 }
 
 /** An update another process stored: into the document and out to the room here. */

@@ -33,7 +33,7 @@ export async function openRoom(ctx: CollabContext, boardId: string): Promise<Boa
 			for (const { seq, update } of room.early.splice(0)) applyRelayed(ctx, room, seq, update);
 			room.size.measure(room.doc);
 			room.state = 'ready';
-			if (ctx.cluster.others > 0) ctx.io.serverSideEmit(RELAY_PRESENCE_REQUEST, boardId);
+			ctx.cluster.toOthers(() => ctx.io.serverSideEmit(RELAY_PRESENCE_REQUEST, boardId));
 			log.info(
 				`[collab] loaded board ${boardId}: ${loaded.seqs.length} log row(s) over the snapshot in ${(performance.now() - started).toFixed(1)} ms`
 			);
