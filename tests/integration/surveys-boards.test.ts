@@ -8,6 +8,7 @@ import { createBoardFixture, waitFor, type BoardFixture } from '../helpers/colla
 import { listTransitions, transitionSurvey } from '../../src/lib/server/review/workflow';
 import * as surveys from '../../src/lib/server/db/surveys';
 import * as boards from '../../src/lib/server/db/boards';
+import { freezeBoard, unfreezeBoard } from '../../src/lib/server/boards/service';
 import { BOARD_CHANNEL } from '../../src/lib/server/collab/notify';
 import { compact } from '../../src/lib/server/collab/persistence';
 
@@ -129,10 +130,10 @@ describe('boards', () => {
 		expect(got).toMatchObject({ title: 'Gearbox side', machine_name: 'Raw water pump 1', survey_status: 'walking', frozen_at: null });
 		expect(await boards.get(t.db, other.organisationId, b!.id)).toBeUndefined();
 
-		expect(await boards.freeze(t.db, g.organisationId, b!.id)).toBe(true);
+		expect(await freezeBoard(t.db, g.organisationId, b!.id)).toBe(true);
 		expect((await boards.get(t.db, g.organisationId, b!.id))!.frozen_at).not.toBeNull();
-		expect(await boards.unfreeze(t.db, g.organisationId, b!.id)).toBe(true);
-		expect(await boards.freeze(t.db, other.organisationId, b!.id)).toBe(false);
+		expect(await unfreezeBoard(t.db, g.organisationId, b!.id)).toBe(true);
+		expect(await freezeBoard(t.db, other.organisationId, b!.id)).toBe(false);
 	});
 
 	it('reads the stored content: snapshot and log together', async () => {

@@ -3,7 +3,7 @@
 // other processes. Every later join waits for the same load.
 import type { CollabContext } from '../context';
 import { BoardRoom, ORIGIN_STORAGE } from '../room';
-import { loadInto } from '../persistence';
+import { loadInto } from '../../db/board-document';
 import { RELAY_PRESENCE_REQUEST } from '../cluster';
 import { wirePresence } from '../presence';
 import { applyRelayed } from './broadcast';
