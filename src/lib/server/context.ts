@@ -1,6 +1,6 @@
 // Process-wide services for the SvelteKit side, created once from the environment.
 import { env } from '$env/dynamic/private';
-import { createDb, type DbHandle } from './db';
+import { APP_POOL_NAME, createDb, type DbHandle } from './db';
 import { createAuth, type Auth } from './auth/lucia';
 import { createMailer, type Mailer } from './mail/mailer';
 import { createThrottle, DEFAULT_THROTTLE, type Throttle } from './auth/throttle';
@@ -45,7 +45,7 @@ export function context(): Context {
 	const url = setting('DATABASE_URL');
 	if (!url) throw new Error('DATABASE_URL is not set (npm start sets it; see .env.example)');
 	const origin = setting('ORIGIN') ?? 'http://127.0.0.1:3000';
-	const handle = createDb(url, intEnv('DATABASE_POOL_SIZE', 10));
+	const handle = createDb(url, intEnv('DATABASE_POOL_SIZE', 10), 'app pool', APP_POOL_NAME);
 	const d = DEFAULT_THROTTLE;
 	ctx = {
 		handle,
