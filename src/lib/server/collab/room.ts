@@ -24,6 +24,11 @@ export interface RoomMember {
 	/** Bytes of updates and presence (budget.ts). */
 	bytes: ByteBucket;
 	syncRequests: TokenBucket;
+	/**
+	 * The member's updates still being checked or stored: each waits for the one before, so they
+	 * are stored and acknowledged in the order sent (the client counts acknowledgements cumulatively).
+	 */
+	inFlight: Promise<void>;
 }
 
 export class BoardRoom {

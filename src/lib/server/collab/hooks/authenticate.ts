@@ -52,7 +52,8 @@ export async function join(ctx: CollabContext, socket: Socket, bytes: ByteBucket
 			reason: access.reason,
 			clientIds: new Set(),
 			bytes,
-			syncRequests: new TokenBucket(SYNC_REQUESTS_PER_SECOND, SYNC_REQUEST_BURST)
+			syncRequests: new TokenBucket(SYNC_REQUESTS_PER_SECOND, SYNC_REQUEST_BURST),
+			inFlight: Promise.resolve()
 		};
 		room.members.set(socket.id, member);
 		socket.join(roomOf(boardId));

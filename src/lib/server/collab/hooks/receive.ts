@@ -13,6 +13,13 @@ import { storeUpdate } from './store';
 import { refused, stored, type Reply } from './acknowledge';
 import { SYNC_REQUEST_BURST, SYNC_REQUESTS_PER_SECOND } from './authenticate';
 
+/** Runs `task` after the member's earlier updates are done with, whatever became of them. */
+function inOrder(member: RoomMember, task: () => Promise<void>): Promise<void> {
+	const run = member.inFlight.then(task);
+	member.inFlight = run.catch(() => {});
+	return run;
+}
+
 /**
  * Everything that can be wrong with a message is found synchronously, before anything is stored
  * or sent: a malformed message closes the socket before its next message is read.
@@ -30,9 +37,10 @@ function handle(ctx: CollabContext, room: BoardRoom, member: RoomMember, bytes: 
 		}
 		case 'update': {
 			const checked = checkUpdate(ctx, room, member, frame.update);
-			if (!checked.ok) return reply(checked.ack);
-			if (member.readOnly) return storeUpdate(ctx, room, member, frame.update, reply);
-			return checkClientIds(ctx, room, member, checked.decoded).then((forged) => {
+			// Answers wait their turn too: an earlier update of this member may still be storing.
+			return inOrder(member, async () => {
+				if (!checked.ok) return reply(checked.ack);
+				const forged = await checkClientIds(ctx, room, member, checked.decoded);
 				if (!forged) return storeUpdate(ctx, room, member, frame.update, reply);
 				reply(refused(forged));
 			});
