@@ -1,6 +1,7 @@
 // Whether sessions are still live (not signed out, not expired), for code outside a request
-// that holds session ids: the live board's sockets. lucia's table is read here and in lucia.ts
-// only; nothing else in the app queries user_session directly.
+// that holds session ids: the live board's sockets (join, state changes, the session sweep).
+// The one other reader of lucia's table is the live board's append statement
+// (collab/persistence.ts), which must check the session in the same statement as the write.
 import type { DB } from '../db/index';
 
 /** The ids among `ids` whose session is still live. */

@@ -55,6 +55,8 @@ const APPEND_SQL = `
  * Appends updates in one statement, each only if, at this moment, the board belongs to the
  * organisation, is not frozen, its survey is not archived, the session is live and the board-access
  * policy lets the member's role write in the survey's status (both read afresh for every update).
+ * The session is checked in this SQL rather than through auth/liveness.ts on purpose: it has to
+ * hold at the moment of the write, in the same statement, not a query earlier.
  * Returns, per update, its seq when stored or null when refused. The statement is its own
  * transaction: when the promise resolves the rows are committed. It runs as a named (prepared)
  * statement: planning this join costs more than running it.

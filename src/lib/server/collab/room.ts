@@ -15,6 +15,10 @@ export const ORIGIN_RELAY = 'relay';
 export const ORIGIN_CATCH_UP = 'catch-up';
 export const ORIGIN_LEAVE = 'leave';
 
+/** Sync requests (step 1) a socket may send: each costs the server an encoding of the board. */
+export const SYNC_REQUESTS_PER_SECOND = 2;
+export const SYNC_REQUEST_BURST = 10;
+
 export interface RoomMember {
 	socket: Socket;
 	viewer: BoardViewer;

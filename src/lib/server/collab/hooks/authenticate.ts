@@ -8,17 +8,13 @@ import { EVENT_MESSAGE, roomOf, type JoinReply } from '../../../board/sync/proto
 import { syncStep1Frame } from '../../../board/sync/frames';
 import type { CollabContext } from '../context';
 import { closeSocket, who } from '../context';
-import type { RoomMember } from '../room';
+import { SYNC_REQUEST_BURST, SYNC_REQUESTS_PER_SECOND, type RoomMember } from '../room';
 import { loadBoardAccess, type BoardViewer } from '../access';
 import { TokenBucket } from '../rate-limit';
 import type { ByteBucket } from '../budget';
 import { presenceFrameFor } from '../presence';
 import { openRoom } from './load';
 import { cancelUnload, scheduleUnload } from './unload';
-
-/** Sync requests (step 1) a socket may send: each costs the server an encoding of the board. */
-export const SYNC_REQUESTS_PER_SECOND = 2;
-export const SYNC_REQUEST_BURST = 10;
 
 export async function join(ctx: CollabContext, socket: Socket, bytes: ByteBucket, payload: unknown, ack: unknown) {
 	if (typeof ack !== 'function') return closeSocket(ctx, socket, 'join without an acknowledgement callback');

@@ -6,12 +6,11 @@ import { EVENT_MESSAGE } from '../../../board/sync/protocol';
 import { Malformed, parseFrame, syncStep2Frame } from '../../../board/sync/frames';
 import type { CollabContext } from '../context';
 import { closeSocket, who } from '../context';
-import type { BoardRoom, RoomMember } from '../room';
+import { SYNC_REQUEST_BURST, SYNC_REQUESTS_PER_SECOND, type BoardRoom, type RoomMember } from '../room';
 import { receivePresence } from '../presence';
 import { checkClientIds, checkUpdate } from './check';
 import { storeUpdate } from './store';
 import { refused, stored, type Reply } from './acknowledge';
-import { SYNC_REQUEST_BURST, SYNC_REQUESTS_PER_SECOND } from './authenticate';
 
 /** Runs `task` after the member's earlier updates are done with, whatever became of them. */
 function inOrder(member: RoomMember, task: () => Promise<void>): Promise<void> {
