@@ -55,8 +55,13 @@ const rssMB = (pid: number) => Number(/VmRSS:\s+(\d+) kB/.exec(readFileSync(`/pr
 const pct = (sorted: number[], p: number) => (sorted.length ? sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)] : NaN);
 
 function floodMessage(bytes: number): Uint8Array {
+	// Valid board content (points with long notes), so the flood costs the server a full check.
 	const doc = new Y.Doc();
-	doc.getText('notes').insert(0, randomBytes(bytes / 2).toString('hex'));
+	doc.transact(() => {
+		for (let left = bytes, i = 0; left > 0; left -= 2000, i++) {
+			addPoint(doc, { x: i, y: i, label: `F${i + 1}`, notes: randomBytes(1000).toString('hex').slice(0, Math.min(2000, left)) });
+		}
+	});
 	const e = encoding.createEncoder();
 	encoding.writeVarUint(e, MESSAGE_SYNC);
 	syncProtocol.writeUpdate(e, Y.encodeStateAsUpdate(doc));

@@ -86,7 +86,7 @@ describe('refused and overwritten work on the live board', () => {
 
 		// Meanwhile the engineer approves P1.
 		await openPoint(engineer, 'P1');
-		await engineer.page.getByTestId('point-editor').getByLabel('Status').selectOption('approved');
+		await engineer.page.getByTestId('point-review').getByRole('button', { name: 'Approve' }).click();
 		await expect.poll(async () => (await pointsOnServer()).P1?.status, { timeout: 10_000 }).toBe('approved');
 
 		await tech.context.setOffline(false);

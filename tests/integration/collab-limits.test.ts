@@ -47,10 +47,23 @@ async function joinedSocket(boardId: string): Promise<Socket> {
 	return socket;
 }
 
-/** A sync update carrying `bytes` of fresh text (each call a new change). */
+/** Adds points whose notes carry about `bytes` of fresh text (valid board content, each call new). */
+function addNotes(doc: Y.Doc, bytes: number, label = 'N'): string[] {
+	const ids: string[] = [];
+	doc.transact(() => {
+		// A point with 2,000 characters of notes encodes to about 2.4 KB.
+		for (let left = bytes, i = 0; left > 0; left -= 2450, i++) {
+			const notes = randomBytes(1000).toString('hex').slice(0, Math.min(2000, Math.max(1, left - 450)));
+			ids.push(addPoint(doc, { x: i, y: i, label: `${label}${i + 1}`.slice(0, 40), notes }));
+		}
+	});
+	return ids;
+}
+
+/** A sync update carrying about `bytes` of fresh point notes (each call a new change). */
 function bigUpdate(bytes: number): Uint8Array {
 	const doc = new Y.Doc();
-	doc.getText('notes').insert(0, randomBytes(bytes / 2).toString('hex'));
+	addNotes(doc, bytes);
 	const e = encoding.createEncoder();
 	encoding.writeVarUint(e, MESSAGE_SYNC);
 	syncProtocol.writeUpdate(e, Y.encodeStateAsUpdate(doc));
@@ -103,7 +116,7 @@ describe('limits on what a board takes', () => {
 		const p = provider(boardId, engineer);
 		await p.whenSynced();
 		const refused = next(p, 'refused');
-		p.doc.getText('notes').insert(0, randomBytes(75 * 1024).toString('hex'));
+		addNotes(p.doc, 150 * 1024);
 		const [reason] = await refused;
 		expect(reason).toMatch(/too large to save/);
 		expect((await storedBytes(boardId)).rows).toBe(1);
@@ -143,22 +156,20 @@ describe('limits on what a board takes', () => {
 		p.on('refused', (r: string) => refused.push(r));
 		// 12 changes of 20 KB each at once: 240 KB against a 100 KB burst at 40 KB/s.
 		const ids: string[] = [];
-		for (let i = 0; i < 12; i++) {
-			p.doc.transact(() => {
-				ids.push(addPoint(p.doc, { x: i, y: i, label: `P${i + 1}`, notes: 'bearing housing' }));
-				p.doc.getText('scratch').insert(0, randomBytes(10 * 1024).toString('hex'));
-			});
-		}
+		for (let i = 0; i < 12; i++) ids.push(...addNotes(p.doc, 20 * 1024, `C${i}-`));
 		await waitFor(() => p.delayed !== null, 'the provider says its changes are held back');
 		expect(p.unsynced).toBeGreaterThan(0);
 		await waitFor(() => p.unsynced === 0, 'every change stored in the end', 30_000);
 		expect(p.delayed).toBeNull();
 		expect(delayed[0]).toMatch(/kept on this device/);
 		await waitFor(() => isDeepStrictEqual(content(watcher.doc), content(p.doc)), 'the other person sees all of it');
-		await waitFor(() => watcher.doc.getText('scratch').length === 12 * 20 * 1024, 'and every byte of it');
+		const notes = (d: Y.Doc) => readBoard(d).points.map((x) => x.notes).join('').length;
+		const written = notes(p.doc);
+		expect(written).toBeGreaterThan(12 * 15 * 1024);
+		await waitFor(() => notes(watcher.doc) === written, 'and every byte of it');
 		const doc = await storedDoc(t.db, boardId);
 		expect(readBoard(doc).points.map((x) => x.id).sort()).toEqual([...ids].sort());
-		expect(doc.getText('scratch').toString()).toBe(p.doc.getText('scratch').toString());
+		expect(notes(doc)).toBe(written);
 		expect(refused).toEqual([]); // nothing was rolled back
 	});
 

@@ -44,7 +44,7 @@ describe('review decisions on the live board', () => {
 		const refused = next(tech, 'refused');
 		updatePoint(tech.doc, id, { status: 'approved' });
 		const [reason] = await refused;
-		expect(String(reason)).toMatch(/Only an engineer can mark a point approved/);
+		expect(String(reason)).toMatch(/Only an engineer can mark P1 as approved/);
 		await tech.whenSynced();
 		expect(statusOf(tech.doc, id)).toBe('proposed'); // rolled back to the server's state
 		expect(tech.readOnly).toBe(false); // other edits still go through

@@ -120,8 +120,23 @@ export function isReviewDecision(status: unknown): status is ReviewDecision {
 	return typeof status === 'string' && (REVIEW_DECISIONS as readonly string[]).includes(status);
 }
 
+/** Why an engineer flags or rejects a point: the trade's usual reasons, then free text. */
+export const DECISION_REASONS = ['sheet_cover', 'too_far', 'no_flat_seat', 'wall_too_thin', 'cable_crosses_rotating', 'supply_too_far', 'other'] as const;
+export type DecisionReason = (typeof DECISION_REASONS)[number];
+export const DECISION_REASON_LABEL: Record<DecisionReason, string> = {
+	sheet_cover: 'On a sheet cover or guard',
+	too_far: 'Too far from the bearing',
+	no_flat_seat: 'No flat seat',
+	wall_too_thin: 'Wall too thin for a stud',
+	cable_crosses_rotating: 'Cable crosses a rotating part',
+	supply_too_far: 'Supply too far',
+	other: 'Other'
+};
+
 /** Who made a point's review decision and when; written with the status, cleared on reopening. */
 export const pointDecisionSchema = z.object({
+	decisionReason: z.enum(DECISION_REASONS, { error: 'Reason: choose one of the options.' }).nullable(),
+	decisionNote: z.string().trim().max(500, 'At most 500 characters.').nullable(),
 	decidedBy: z.string().max(200, 'At most 200 characters.').nullable(),
 	decidedByName: z.string().max(200, 'At most 200 characters.').nullable(),
 	decidedAt: timestampSchema.nullable()

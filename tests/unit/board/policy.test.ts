@@ -124,6 +124,13 @@ describe('review decisions are protected from technicians', () => {
 		expect(codes(check(doc, tam, (d) => movePoint(d, p1, 400, 400)))).toContain('rights.decided-point');
 	});
 
+	test('a flagged point may be moved and reworked by the technician, but not deleted', () => {
+		const { doc, p2 } = reviewedBoard();
+		expect(check(doc, tam, (d) => movePoint(d, p2, 260, 140))).toEqual({ ok: true });
+		expect(check(doc, tam, (d) => updatePoint(d, p2, { surface: 'cast_housing' }))).toEqual({ ok: true });
+		expect(check(doc, tam, (d) => deletePoint(d, p2))).toMatchObject({ ok: false, refusals: [{ id: p2, code: 'rights.decided-point' }] });
+	});
+
 	test('resetting a flagged or rejected point to proposed is refused', () => {
 		const { doc, p2, p3 } = reviewedBoard();
 		const flagged = check(doc, tam, (d) => updatePoint(d, p2, { status: 'proposed' }));
@@ -687,7 +694,7 @@ describe('properties', () => {
 		);
 	});
 
-	test("a technician's accepted changes never touch a decided point or its route", () => {
+	test("a technician's accepted changes never touch an approved or rejected point or its route, and never un-flag or delete a flagged one", () => {
 		fc.assert(
 			fc.property(fc.array(op, { minLength: 1, maxLength: 25 }), (ops) => {
 				const { doc: server } = reviewedBoard();
@@ -698,7 +705,11 @@ describe('properties', () => {
 					if (!r.ok) continue;
 					Y.applyUpdate(server, u);
 					const after = readBoard(server);
-					for (const p of before.points.filter((x) => x.status !== 'proposed')) {
+					for (const p of before.points.filter((x) => x.status === 'flagged')) {
+						// A flag asks for rework: the point may change, but stays, and stays flagged.
+						expect(after.points.find((x) => x.id === p.id)).toMatchObject({ status: 'flagged', decidedBy: p.decidedBy, decidedAt: p.decidedAt });
+					}
+					for (const p of before.points.filter((x) => x.status === 'approved' || x.status === 'rejected')) {
 						expect(after.points.find((x) => x.id === p.id)).toEqual(p);
 						for (const route of before.routes.filter((x) => x.pointId === p.id)) expect(after.routes.find((x) => x.id === route.id)).toEqual(route);
 						expect(after.routes.filter((x) => x.pointId === p.id)).toHaveLength(before.routes.filter((x) => x.pointId === p.id).length);

@@ -16,6 +16,7 @@ import {
 	zonePatchSchema,
 	zonePolygonSchema,
 	type PointPatch,
+	type DecisionReason,
 	type PointStatus,
 	type RoutePatch,
 	type ScaleData,
@@ -123,6 +124,9 @@ export function updatePoint(doc: Y.Doc, id: string, patch: PointPatch, origin: O
 export interface Decider {
 	userId: string;
 	name: string;
+	/** Why a point is flagged or rejected (from the trade's list) and in the engineer's words. */
+	reason?: DecisionReason | null;
+	note?: string | null;
 }
 
 /**
@@ -142,8 +146,17 @@ export function decidePoint(
 	const m = maps(doc).points.get(id);
 	if (!(m instanceof Y.Map)) return false;
 	const decided = isReviewDecision(s);
+	const withReason = decided && s !== 'approved';
 	const record = pointDecisionSchema.parse(
-		decided ? { decidedBy: by.userId, decidedByName: by.name, decidedAt: at } : { decidedBy: null, decidedByName: null, decidedAt: null }
+		decided
+			? {
+					decidedBy: by.userId,
+					decidedByName: by.name,
+					decidedAt: at,
+					decisionReason: withReason ? (by.reason ?? null) : null,
+					decisionNote: withReason && by.note?.trim() ? by.note.trim() : null
+				}
+			: { decidedBy: null, decidedByName: null, decidedAt: null, decisionReason: null, decisionNote: null }
 	);
 	doc.transact(() => {
 		setAll(m, { status: s });

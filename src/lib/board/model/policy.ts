@@ -13,10 +13,11 @@
 // - a viewer (any role without board.write) changes nothing, and a frozen board takes nothing;
 // - only roles that may decide (engineer, admin) write a review decision (flagged, rejected,
 //   approved), reopen a decided point, or write who decided;
-// - anyone else may not edit, move, replace or delete a point that carries a decision, nor create,
-//   edit or delete a cable route that starts at such a point (the route is part of what was
-//   decided), nor change the scale while the board holds an approved point (approved distances
-//   and route lengths measured on the photo follow the scale);
+// - anyone else may not edit, move, replace or delete an approved or rejected point, nor create,
+//   edit or delete a cable route that starts at one (the route is part of what was decided), nor
+//   change the scale while the board holds an approved point (approved distances and route
+//   lengths measured on the photo follow the scale); a flagged point asks for rework: it may be
+//   moved and edited, with its route, but not deleted or un-flagged;
 // - everything else (placing, editing and deleting undecided points, routes and keep-out zones,
 //   whoever placed them) is open to every role that may write, as surveying is shared work.
 import * as Y from 'yjs';
@@ -88,7 +89,6 @@ export type RefusalCode =
 	| 'rights.decided-point'
 	| 'rights.decided-route'
 	| 'rights.scale'
-	| 'rights.attribution'
 	| 'schema.value'
 	| 'schema.unknown-key'
 	| 'schema.missing-key'
@@ -136,7 +136,7 @@ const ROOT_KIND: Readonly<Record<string, ItemKind>> = { [MAP_POINTS]: 'point', [
 const META_KEYS: ReadonlySet<string> = new Set([META_SCALE]);
 /** Ids the model makes (newId: 24 hex digits), with room for other short, plain ids. */
 const ITEM_ID = /^[A-Za-z0-9_-]{1,64}$/;
-const DECISION_KEYS: ReadonlySet<string> = new Set(['decidedBy', 'decidedByName', 'decidedAt']);
+const DECISION_KEYS: ReadonlySet<string> = new Set(['decidedBy', 'decidedByName', 'decidedAt', 'decisionReason', 'decisionNote']);
 
 type FieldSchema = z.ZodType;
 const SHAPES: Readonly<Record<ItemKind, Readonly<Record<string, FieldSchema>>>> = {
@@ -713,15 +713,14 @@ function judge(
 					}
 				}
 			}
-			// A change is signed with the name of whoever makes it, never someone else's.
-			if (ma && changed.includes('updatedBy') && ma.get('updatedBy') !== actor.name) {
-				out.push({ kind, id, field: 'updatedBy', code: 'rights.attribution', reason: 'A change can only carry your own name.' });
-				continue;
-			}
 			if (decider) continue;
 
 			// Rights of everyone who may not decide.
 			if (kind === 'point') {
+				// A flag asks for the point to be looked at again: it may be moved and its fields
+				// reworked, but it stays flagged (and on the board) until an engineer decides.
+				const rework = statusOf(mb) === 'flagged' && !deleted && !changed.includes('status') && !changed.some((k) => DECISION_KEYS.has(k));
+				if (rework) continue;
 				if (isReviewDecision(statusOf(mb))) {
 					const { d, words, ask } = ctxWords(mb);
 					const what = deleted ? 'cannot be deleted' : changed.includes('status') ? 'can only be reopened by an engineer' : 'cannot be changed';
@@ -754,7 +753,7 @@ function judge(
 				for (const pid of pids) {
 					if (typeof pid !== 'string') continue;
 					const point = mapOf(b.points, pid);
-					if (!point || !isReviewDecision(statusOf(point))) continue;
+					if (!point || !isReviewDecision(statusOf(point)) || statusOf(point) === 'flagged') continue;
 					const { d, words, ask } = ctxWords(point);
 					const pl = labelOf(point);
 					const what = created ? 'takes no new cable route' : deleted ? 'keeps its cable route' : 'keeps its cable route as it is';

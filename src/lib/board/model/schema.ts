@@ -130,7 +130,13 @@ export function readPoint(id: string, m: Y.Map<unknown>): BoardPoint | null {
 	const y = num(m.get('y'));
 	if (x === null || y === null) return null;
 	const fields = readFields<PointFields>(m, pointFieldsSchema.shape, { label: '?', ...POINT_DEFAULTS });
-	const decision = readFields<PointDecision>(m, pointDecisionSchema.shape, { decidedBy: null, decidedByName: null, decidedAt: null });
+	const decision = readFields<PointDecision>(m, pointDecisionSchema.shape, {
+		decidedBy: null,
+		decidedByName: null,
+		decidedAt: null,
+		decisionReason: null,
+		decisionNote: null
+	});
 	return {
 		id,
 		x,

@@ -29,8 +29,8 @@ export interface RoomMember {
 	bytes: ByteBucket;
 	syncRequests: TokenBucket;
 	/**
-	 * The member's updates still being checked or stored: each waits for the one before, so they
-	 * are stored and acknowledged in the order sent (the client counts acknowledgements cumulatively).
+	 * The member's updates still being checked: each waits for the one before and is handed to
+	 * the writer in the order sent, so acknowledgements come in that order (hooks/receive.ts).
 	 */
 	inFlight: Promise<void>;
 }

@@ -11,6 +11,7 @@ import { getMachine } from '../db/machines';
 import { getThresholds } from '../db/thresholds';
 import { maps, readBoard, type BoardSnapshot } from '../../board/model';
 import { evaluateBoard, type BoardEvaluation } from '../../trade';
+import { checkBoardChange } from '../../board/model/policy';
 import { compareRevisions, type ComparableRevision } from '../../survey/compare';
 
 type Trx = Transaction<Database>;
@@ -98,6 +99,13 @@ async function readBoards(trx: Trx, organisationId: string, surveyId: string): P
 	return out;
 }
 
+/** A board holds content the board model does not accept: it cannot be approved as it is. */
+export class RevisionContentError extends Error {
+	constructor(readonly problems: string[]) {
+		super(`A board holds something the board does not accept, so the layout cannot be approved yet: ${problems.join(' · ')}`);
+	}
+}
+
 /**
  * Writes the next revision of a survey from its boards as they are stored now. Returns the
  * exceptions instead when there are rejected or undecided points and they were not confirmed.
@@ -108,6 +116,18 @@ export async function writeRevision(
 ): Promise<{ ok: true; revision: { id: string; number: number } } | RevisionExceptionsNeeded> {
 	const boards = await readBoards(trx, input.organisationId, input.surveyId);
 	try {
+		// What is approved must be what the board model accepts: each board's whole content is
+		// run through the board policy as if the approving engineer had written it at once.
+		const invalid = boards.flatMap((b) => {
+			const r = checkBoardChange(
+				new Y.Doc(),
+				Y.encodeStateAsUpdate(b.doc),
+				{ role: 'engineer', userId: input.approvedBy, name: '' },
+				{ frozen: false, limits: { maxUpdateBytes: Number.MAX_SAFE_INTEGER, maxDocumentBytes: Number.MAX_SAFE_INTEGER } }
+			);
+			return r.ok ? [] : [`${b.title}: ${r.refusals.map((x) => x.reason).slice(0, 3).join(' ')}`];
+		});
+		if (invalid.length) throw new RevisionContentError(invalid);
 		const exceptions = boards.flatMap((b) => exceptionsOf(b.id, b.board));
 		if (exceptions.length > 0 && !input.confirmExceptions) return { ok: false, exceptions };
 		const last = await trx

@@ -8,7 +8,7 @@ import { can } from '../auth/guard';
 import { announceBoardState } from '../boards/service';
 import { record } from '../db/audit';
 import { checkTransition, SURVEY_STATUS_LABEL, TRANSITION_NOTE_MAX, type SurveyStatus, type TransitionName } from '../../survey/states';
-import { writeRevision, type RevisionExceptionsNeeded } from './revisions';
+import { RevisionContentError, writeRevision, type RevisionExceptionsNeeded } from './revisions';
 
 export class WorkflowError extends Error {
 	constructor(
@@ -82,6 +82,9 @@ export async function transitionSurvey(db: DB, input: TransitionInput): Promise<
 				approvedAt: now,
 				note,
 				confirmExceptions: input.confirmExceptions === true
+			}).catch((e) => {
+				if (e instanceof RevisionContentError) throw new WorkflowError(409, e.message);
+				throw e;
 			});
 			if (!written.ok) {
 				throw new WorkflowError(

@@ -17,8 +17,8 @@ import { ensureOwnership, structClientIds } from '../client-ids';
 import { overBudget, refused, stored } from './acknowledge';
 
 /**
- * The synchronous checks; a Malformed throw closes the socket before its next message is read.
- * What passes here goes on to `checkClientIds` (it may have to ask the database).
+ * The checks that need nothing but the message and the room, run at once; a Malformed throw
+ * closes the socket before its next message is read. What passes goes on to `checkRights`.
  */
 export function checkUpdate(ctx: CollabContext, room: BoardRoom, member: RoomMember, update: Uint8Array): { ok: true; decoded: DecodedUpdate } | { ok: false; ack: MessageAck } {
 	const { options, log } = ctx;
@@ -42,12 +42,22 @@ export function checkUpdate(ctx: CollabContext, room: BoardRoom, member: RoomMem
 		log.warn(`[collab] refused an update from ${who(member.socket)}: the board would pass ${options.maxDocumentBytes} bytes`);
 		return { ok: false, ack: refused(`This board has reached its size limit (${kib(options.maxDocumentBytes)}). Your change was not saved.`) };
 	}
+	return { ok: true, decoded };
+}
+
+/**
+ * The member's rights over the change: the board policy, then client-id ownership. Null when it
+ * may be stored, else the reason in words for the person. Runs in the member's queue (after
+ * its earlier updates were checked), since both depend on what came before.
+ */
+export async function checkRights(ctx: CollabContext, room: BoardRoom, member: RoomMember, update: Uint8Array, decoded: DecodedUpdate): Promise<string | null> {
+	if (member.readOnly) return null; // the store's own check refuses it with the reason
 	const refusal = checkPolicy(ctx, room, member, update);
 	if (refusal) {
-		log.warn(`[collab] refused an update from ${who(member.socket)}: ${refusal}`);
-		return { ok: false, ack: refused(refusal) };
+		ctx.log.warn(`[collab] refused an update from ${who(member.socket)}: ${refusal}`);
+		return refusal;
 	}
-	return { ok: true, decoded };
+	return checkClientIds(ctx, room, member, decoded);
 }
 
 /**
@@ -76,8 +86,7 @@ function checkPolicy(ctx: CollabContext, room: BoardRoom, member: RoomMember, up
 }
 
 /** Client ids belong to the member who introduced them: null when the update keeps to its own. */
-export async function checkClientIds(ctx: CollabContext, room: BoardRoom, member: RoomMember, decoded: DecodedUpdate): Promise<string | null> {
-	if (member.readOnly) return null;
+async function checkClientIds(ctx: CollabContext, room: BoardRoom, member: RoomMember, decoded: DecodedUpdate): Promise<string | null> {
 	const verdict = await ensureOwnership(ctx.db, room.owners, room.id, member.viewer.userId, structClientIds(decoded), (id) => Y.getState(room.doc.store, id));
 	if (verdict.ok) return null;
 	ctx.log.warn(`[collab] refused an update from ${who(member.socket)}: writes under client id ${verdict.clientId} of someone else`);

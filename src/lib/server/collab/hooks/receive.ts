@@ -8,11 +8,15 @@ import type { CollabContext } from '../context';
 import { closeSocket, who } from '../context';
 import { SYNC_REQUEST_BURST, SYNC_REQUESTS_PER_SECOND, type BoardRoom, type RoomMember } from '../room';
 import { receivePresence } from '../presence';
-import { checkClientIds, checkUpdate } from './check';
+import { checkRights, checkUpdate } from './check';
 import { storeUpdate } from './store';
 import { refused, stored, type Reply } from './acknowledge';
 
-/** Runs `task` after the member's earlier updates are done with, whatever became of them. */
+/**
+ * Runs `task` after the member's earlier updates were checked and handed to the writer, whatever
+ * became of them: a client-id lookup in the database must not let a later update overtake an
+ * earlier one (the client takes an acknowledgement as covering everything it sent before).
+ */
 function inOrder(member: RoomMember, task: () => Promise<void>): Promise<void> {
 	const run = member.inFlight.then(task);
 	member.inFlight = run.catch(() => {});
@@ -23,7 +27,7 @@ function inOrder(member: RoomMember, task: () => Promise<void>): Promise<void> {
  * Everything that can be wrong with a message is found synchronously, before anything is stored
  * or sent: a malformed message closes the socket before its next message is read.
  */
-function handle(ctx: CollabContext, room: BoardRoom, member: RoomMember, bytes: Uint8Array, reply: Reply): Promise<void> | void {
+function handle(ctx: CollabContext, room: BoardRoom, member: RoomMember, bytes: Uint8Array, reply: Reply, failed: (e: unknown) => void): Promise<void> | void {
 	const frame = parseFrame(bytes);
 	switch (frame.kind) {
 		case 'step1': {
@@ -36,12 +40,15 @@ function handle(ctx: CollabContext, room: BoardRoom, member: RoomMember, bytes: 
 		}
 		case 'update': {
 			const checked = checkUpdate(ctx, room, member, frame.update);
-			// Answers wait their turn too: an earlier update of this member may still be storing.
+			const update = frame.update;
+			// Each update waits for the member's earlier ones to be checked and handed to the writer.
 			return inOrder(member, async () => {
 				if (!checked.ok) return reply(checked.ack);
-				const forged = await checkClientIds(ctx, room, member, checked.decoded);
-				if (!forged) return storeUpdate(ctx, room, member, frame.update, reply);
-				reply(refused(forged));
+				const refusal = await checkRights(ctx, room, member, update, checked.decoded);
+				if (refusal) return reply(refused(refusal));
+				// Handed to the writer now, in order (it commits in that order); the commit is
+				// awaited apart from the queue, so one member's updates still share group commits.
+				void storeUpdate(ctx, room, member, update, reply).catch(failed);
 			});
 		}
 		case 'awareness': {
@@ -60,7 +67,7 @@ export function receive(ctx: CollabContext, socket: Socket, room: BoardRoom, mem
 		closeSocket(ctx, socket, `message could not be handled: ${(e as Error)?.message ?? String(e)}`);
 	};
 	try {
-		handle(ctx, room, member, bytes, reply)?.catch(failed);
+		handle(ctx, room, member, bytes, reply, failed)?.catch(failed);
 	} catch (e) {
 		failed(e);
 	}
