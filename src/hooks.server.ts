@@ -1,7 +1,14 @@
 import { sequence } from '@sveltejs/kit/hooks';
-import type { Handle, HandleServerError } from '@sveltejs/kit';
+import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
 import { loadViewer } from '$lib/server/auth/session';
 import { context } from '$lib/server/context';
+import { publishRealtime } from '$lib/server/realtime';
+
+// The production entry (server/index.js) attaches socket.io to its HTTP server with the function
+// published here, so the live board shares this build's database pool and lucia instance.
+export const init: ServerInit = () => {
+	publishRealtime();
+};
 
 const authenticate: Handle = async ({ event, resolve }) => {
 	event.locals.viewer = await loadViewer(event.cookies);

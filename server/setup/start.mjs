@@ -32,7 +32,7 @@ let app = null;
 let announced = false;
 let restarts = 0;
 function startApp() {
-	const child = spawn('node', ['--import', 'tsx', 'server/index.ts'], {
+	const child = spawn('node', ['server/index.js'], {
 		stdio: ['inherit', 'pipe', 'inherit'],
 		env: { ...process.env, ...env }
 	});

@@ -1,4 +1,4 @@
-// Starts the built app (server/index.ts: SvelteKit handler + socket.io) as a child process on a
+// Starts the built app (server/index.js: SvelteKit handler + socket.io) as a child process on a
 // free port, as production runs it.
 import { spawn, type ChildProcess } from 'node:child_process';
 import { createServer } from 'node:net';
@@ -31,7 +31,7 @@ export async function startApp(opts: { databaseUrl: string; env?: Record<string,
 	const port = opts.port ?? (await freePort());
 	const url = `http://127.0.0.1:${port}`;
 	const dataDir = opts.dataDir ?? mkdtempSync(join(tmpdir(), 'spotface-data-'));
-	const child = spawn('node', ['--import', 'tsx', 'server/index.ts'], {
+	const child = spawn('node', ['server/index.js'], {
 		env: {
 			...process.env,
 			NODE_ENV: 'production',

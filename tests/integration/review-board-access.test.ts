@@ -7,7 +7,7 @@ import { createBoardFixture, next, openProvider, sessionCookie, storedDoc, waitF
 import { addPoint, maps, readBoard } from '../../src/lib/board/model';
 import type { BoardProvider } from '../../src/lib/board/sync/provider';
 import { transitionSurvey } from '../../src/lib/server/review/workflow';
-import * as boards from '../../src/lib/server/db/boards';
+import { freezeBoard } from '../../src/lib/server/boards/service';
 import { REASON_FROZEN, REASON_SUBMITTED } from '../../src/lib/survey/board-access';
 
 let t: TestDatabase;
@@ -77,7 +77,7 @@ describe('board access while the survey is submitted', () => {
 
 	it('a frozen board refuses a write through the socket, even from the engineer', async () => {
 		const boardId = f.boardIds[1];
-		expect(await boards.freeze(t.db, f.organisationId, boardId)).toBe(true);
+		expect(await freezeBoard(t.db, f.organisationId, boardId)).toBe(true);
 		const eng = provider(boardId, cookies.engineer);
 		await eng.whenSynced();
 		await waitFor(() => eng.readOnly, 'read-only on join');

@@ -8,6 +8,7 @@ import { createBoardFixture, waitFor, type BoardFixture } from '../helpers/colla
 import { listTransitions, transitionSurvey } from '../../src/lib/server/review/workflow';
 import * as surveys from '../../src/lib/server/db/surveys';
 import * as boards from '../../src/lib/server/db/boards';
+import { freezeBoard, unfreezeBoard } from '../../src/lib/server/boards/service';
 import { BOARD_CHANNEL } from '../../src/lib/server/collab/notify';
 import { compact } from '../../src/lib/server/collab/persistence';
 
@@ -129,10 +130,23 @@ describe('boards', () => {
 		expect(got).toMatchObject({ title: 'Gearbox side', machine_name: 'Raw water pump 1', survey_status: 'walking', frozen_at: null });
 		expect(await boards.get(t.db, other.organisationId, b!.id)).toBeUndefined();
 
-		expect(await boards.freeze(t.db, g.organisationId, b!.id)).toBe(true);
-		expect((await boards.get(t.db, g.organisationId, b!.id))!.frozen_at).not.toBeNull();
-		expect(await boards.unfreeze(t.db, g.organisationId, b!.id)).toBe(true);
-		expect(await boards.freeze(t.db, other.organisationId, b!.id)).toBe(false);
+		const listener = new pg.Client({ connectionString: t.url });
+		await listener.connect();
+		const heard: string[] = [];
+		listener.on('notification', (m) => heard.push(m.payload!));
+		await listener.query(`LISTEN ${BOARD_CHANNEL}`);
+		try {
+			expect(await freezeBoard(t.db, g.organisationId, b!.id)).toBe(true);
+			expect((await boards.get(t.db, g.organisationId, b!.id))!.frozen_at).not.toBeNull();
+			await waitFor(() => heard.length === 1, 'the freeze announced');
+			expect(await unfreezeBoard(t.db, g.organisationId, b!.id)).toBe(true);
+			expect((await boards.get(t.db, g.organisationId, b!.id))!.frozen_at).toBeNull();
+			await waitFor(() => heard.length === 2, 'the unfreeze announced');
+			expect(await freezeBoard(t.db, other.organisationId, b!.id)).toBe(false);
+			expect(heard).toEqual([b!.id, b!.id]); // nothing announced for a board not the organisation's
+		} finally {
+			await listener.end();
+		}
 	});
 
 	it('reads the stored content: snapshot and log together', async () => {

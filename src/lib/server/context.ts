@@ -1,12 +1,14 @@
 // Process-wide services for the SvelteKit side, created once from the environment.
 import { env } from '$env/dynamic/private';
-import { createDb, type DbHandle } from './db';
+import { APP_POOL_NAME, createDb, type DbHandle } from './db';
 import { createAuth, type Auth } from './auth/lucia';
 import { createMailer, type Mailer } from './mail/mailer';
 import { createThrottle, DEFAULT_THROTTLE, type Throttle } from './auth/throttle';
 
 export interface AppConfig {
 	origin: string;
+	/** The database; the live board opens its own small pools on it (realtime.ts). */
+	databaseUrl: string;
 	/** Where the local test mail server keeps every message (development only). */
 	mailCaptureDir: string | null;
 	/** DEV_MAIL_VIEWER=1: /dev/mail shows every captured message, reset links included. */
@@ -24,27 +26,37 @@ interface Context {
 
 let ctx: Context | null = null;
 
+/**
+ * A setting from the environment. SvelteKit fills `env` when the server initialises; in `npm run
+ * dev` the live board (server/dev-plugin.ts) may ask before the first request, so the process
+ * environment answers then (in production both are the same).
+ */
+function setting(name: string): string | undefined {
+	return env[name] ?? process.env[name];
+}
+
 function intEnv(name: string, fallback: number): number {
-	const v = Number(env[name]);
+	const v = Number(setting(name));
 	return Number.isFinite(v) && v > 0 ? v : fallback;
 }
 
 export function context(): Context {
 	if (ctx) return ctx;
-	const url = env.DATABASE_URL;
+	const url = setting('DATABASE_URL');
 	if (!url) throw new Error('DATABASE_URL is not set (npm start sets it; see .env.example)');
-	const origin = env.ORIGIN ?? 'http://127.0.0.1:3000';
-	const handle = createDb(url, intEnv('DATABASE_POOL_SIZE', 10));
+	const origin = setting('ORIGIN') ?? 'http://127.0.0.1:3000';
+	const handle = createDb(url, intEnv('DATABASE_POOL_SIZE', 10), 'app pool', APP_POOL_NAME);
 	const d = DEFAULT_THROTTLE;
 	ctx = {
 		handle,
 		auth: createAuth(handle.pool, { secure: origin.startsWith('https:') }),
-		mailer: createMailer({ db: handle.db, smtpUrl: env.SMTP_URL || undefined, from: env.MAIL_FROM || 'Spotface <no-reply@spotface.local>' }),
+		mailer: createMailer({ db: handle.db, smtpUrl: setting('SMTP_URL') || undefined, from: setting('MAIL_FROM') || 'Spotface <no-reply@spotface.local>' }),
 		config: {
 			origin,
-			mailCaptureDir: env.MAIL_CAPTURE_DIR || null,
-			devMailViewer: env.DEV_MAIL_VIEWER === '1',
-			dataDir: env.DATA_DIR || '.data'
+			databaseUrl: url,
+			mailCaptureDir: setting('MAIL_CAPTURE_DIR') || null,
+			devMailViewer: setting('DEV_MAIL_VIEWER') === '1',
+			dataDir: setting('DATA_DIR') || '.data'
 		},
 		throttle: createThrottle(handle.pool, {
 			signInFreePerAccountAddress: intEnv('RATE_LIMIT_SIGNIN_FREE_PER_ACCOUNT_ADDRESS', d.signInFreePerAccountAddress),

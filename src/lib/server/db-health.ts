@@ -1,8 +1,8 @@
 // What this process knows about its database connections, for /api/health and the logs: every
 // part that holds a connection (the board-state listener, the socket.io adapter's listener, the
-// board writer) reports 'up' or 'down' here. The SvelteKit bundle and the socket.io side
-// (server/realtime.ts, loaded by tsx) are separate module graphs in one process, so the record
-// lives on globalThis under a registered symbol.
+// board writer) reports 'up' or 'down' here. Pages and the live board are one module graph
+// (src/lib/server/realtime.ts is built with the app); the record still lives on globalThis under
+// a registered symbol so that a module Vite reloads in `npm run dev` keeps it.
 //
 // Also: guardPool, which makes sure no connection a pool hands out can crash the process.
 import type pg from 'pg';

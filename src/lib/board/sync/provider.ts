@@ -43,18 +43,14 @@
 // IndexedDB through y-indexeddb, so the board opens and takes edits without a connection; on
 // reconnect the sync exchange merges both sides. IndexedDB is never used in Node unless asked.
 import * as Y from 'yjs';
-import * as decoding from 'lib0/decoding';
-import * as encoding from 'lib0/encoding';
 import { Awareness, applyAwarenessUpdate, encodeAwarenessUpdate, removeAwarenessStates } from 'y-protocols/awareness';
-import * as syncProtocol from 'y-protocols/sync';
+import { awarenessFrame, receiveFrame, syncStep1Frame, syncUpdateFrame, updateOfFrame } from './frames';
 import { io, type Socket } from 'socket.io-client';
 import {
 	EVENT_CLOSED,
 	EVENT_JOIN,
 	EVENT_MESSAGE,
 	EVENT_STATE,
-	MESSAGE_AWARENESS,
-	MESSAGE_SYNC,
 	type BoardStateEvent,
 	type HandshakeErrorData,
 	type JoinReply,
@@ -258,7 +254,7 @@ export class BoardProvider {
 		this.#clearHeld();
 		if (this.#socket?.connected && this.awareness.getLocalState() !== null) {
 			// Let the others see us go at once rather than after the server notices.
-			this.#send(encodeFrame(MESSAGE_AWARENESS, encodeAwarenessUpdate(this.awareness, [this.awareness.clientID], new Map())));
+			this.#send(awarenessFrame(encodeAwarenessUpdate(this.awareness, [this.awareness.clientID], new Map())));
 		}
 		this.#socket?.disconnect();
 		this.#onDisconnected();
@@ -389,10 +385,7 @@ export class BoardProvider {
 		this.#setReadOnly(reply.readOnly, reply.reason);
 		this.#setStatus('connected');
 		// Our state vector; the server answers with what we miss (sync step 2) and asks for ours.
-		const e = encoding.createEncoder();
-		encoding.writeVarUint(e, MESSAGE_SYNC);
-		syncProtocol.writeSyncStep1(e, this.#doc);
-		this.#send(encoding.toUint8Array(e));
+		this.#send(syncStep1Frame(this.#doc));
 		// Re-announce presence with a new clock: the server may still hold our last clock from
 		// before the reconnect and would ignore the same one.
 		const state = this.awareness.getLocalState();
@@ -458,10 +451,11 @@ export class BoardProvider {
 			const flush = () => {
 				if (!group.length) return;
 				const updates = group.map((h) => h.update);
-				const e = encoding.createEncoder();
-				encoding.writeVarUint(e, MESSAGE_SYNC);
-				syncProtocol.writeUpdate(e, updates.length === 1 ? updates[0] : Y.mergeUpdates(updates));
-				this.#sendUpdate(encoding.toUint8Array(e), Math.max(...group.map((h) => h.upTo)), updates);
+				this.#sendUpdate(
+					syncUpdateFrame(updates.length === 1 ? updates[0] : Y.mergeUpdates(updates)),
+					Math.max(...group.map((h) => h.upTo)),
+					updates
+				);
 				group = [];
 				bytes = 0;
 			};
@@ -528,7 +522,7 @@ export class BoardProvider {
 			} else if (ack && 'refused' in ack) {
 				this.#rollBack(ack.refused, ack.readOnly);
 			} else if (ack && 'retry' in ack) {
-				this.#hold(updates ?? [updateOf(message)], upTo, ack.retry, ack.retryAfterMs);
+				this.#hold(updates ?? [updateOfFrame(message)], upTo, ack.retry, ack.retryAfterMs);
 			}
 		});
 	}
@@ -558,10 +552,7 @@ export class BoardProvider {
 			this.#held.push({ update, upTo: this.#localSeq });
 			return;
 		}
-		const e = encoding.createEncoder();
-		encoding.writeVarUint(e, MESSAGE_SYNC);
-		syncProtocol.writeUpdate(e, update);
-		this.#sendUpdate(encoding.toUint8Array(e), this.#localSeq, [update]);
+		this.#sendUpdate(syncUpdateFrame(update), this.#localSeq, [update]);
 	};
 
 	#onAwarenessUpdate = ({ added, updated, removed }: { added: number[]; updated: number[]; removed: number[] }, origin: unknown) => {
@@ -580,7 +571,7 @@ export class BoardProvider {
 			this.#awarenessTimer = null;
 			this.#awarenessLastSent = Date.now();
 			if (!this.#joined) return;
-			this.#send(encodeFrame(MESSAGE_AWARENESS, encodeAwarenessUpdate(this.awareness, [this.awareness.clientID])));
+			this.#send(awarenessFrame(encodeAwarenessUpdate(this.awareness, [this.awareness.clientID])));
 		};
 		if (wait === 0) flush();
 		else this.#awarenessTimer = setTimeout(flush, wait);
@@ -589,21 +580,15 @@ export class BoardProvider {
 	#onMessage(data: ArrayBuffer | Uint8Array) {
 		const bytes = data instanceof Uint8Array ? data : new Uint8Array(data);
 		try {
-			const d = decoding.createDecoder(bytes);
-			const type = decoding.readVarUint(d);
-			if (type === MESSAGE_SYNC) {
-				const reply = encoding.createEncoder();
-				encoding.writeVarUint(reply, MESSAGE_SYNC);
-				const upTo = this.#localSeq;
-				const step = syncProtocol.readSyncMessage(d, reply, this.#doc, this);
-				if (step === syncProtocol.messageYjsSyncStep1) {
-					// Our sync step 2 (everything the server lacks, offline edits included).
-					this.#sendUpdate(encoding.toUint8Array(reply), upTo);
-				} else if (step === syncProtocol.messageYjsSyncStep2) {
-					this.#onSynced();
-				}
-			} else if (type === MESSAGE_AWARENESS) {
-				applyAwarenessUpdate(this.awareness, decoding.readVarUint8Array(d), this);
+			const upTo = this.#localSeq;
+			const frame = receiveFrame(bytes, this.#doc, this);
+			if (frame.kind === 'step1') {
+				// Our sync step 2 (everything the server lacks, offline edits included).
+				this.#sendUpdate(frame.reply, upTo);
+			} else if (frame.kind === 'step2') {
+				this.#onSynced();
+			} else if (frame.kind === 'awareness') {
+				applyAwarenessUpdate(this.awareness, frame.update, this);
 			}
 		} catch (e) {
 			console.error('[board sync] could not read a message from the server:', e);
@@ -725,10 +710,7 @@ export class BoardProvider {
 				.then(() => this.#openOffline(fresh));
 		}
 		// Ask for the whole state (empty state vector); 'refused' follows once it is here.
-		const e = encoding.createEncoder();
-		encoding.writeVarUint(e, MESSAGE_SYNC);
-		syncProtocol.writeSyncStep1(e, fresh);
-		this.#send(encoding.toUint8Array(e));
+		this.#send(syncStep1Frame(fresh));
 	}
 
 	async #openOffline(doc: Y.Doc): Promise<void> {
@@ -738,19 +720,4 @@ export class BoardProvider {
 		this.#offline = store as unknown as OfflineStore;
 		await store.whenSynced;
 	}
-}
-
-/** The document update inside a sync message (step 2 or update). */
-function updateOf(message: Uint8Array): Uint8Array {
-	const d = decoding.createDecoder(message);
-	decoding.readVarUint(d); // MESSAGE_SYNC
-	decoding.readVarUint(d); // step 2 or update
-	return decoding.readVarUint8Array(d);
-}
-
-function encodeFrame(type: number, payload: Uint8Array) {
-	const e = encoding.createEncoder();
-	encoding.writeVarUint(e, type);
-	encoding.writeVarUint8Array(e, payload);
-	return encoding.toUint8Array(e);
 }

@@ -3,6 +3,7 @@ import type { DB } from '../db/index';
 import type { Role } from '../db/types';
 import { can } from '../auth/guard';
 import { boardAccess } from '../../survey/board-access';
+import { isSessionLive } from '../auth/liveness';
 
 export interface BoardViewer {
 	userId: string;
@@ -29,31 +30,28 @@ export { REASON_VIEWER, REASON_APPROVED, REASON_ARCHIVED, REASON_SESSION } from 
  * belongs to another organisation or the member may not read boards (all answered alike).
  */
 export async function loadBoardAccess(db: DB, viewer: BoardViewer, boardId: string): Promise<BoardAccess | null> {
-	const row = await db
-		.selectFrom('board')
-		.innerJoin('survey', (j) => j.onRef('survey.id', '=', 'board.survey_id').onRef('survey.organisation_id', '=', 'board.organisation_id'))
-		.innerJoin('member', (j) => j.onRef('member.organisation_id', '=', 'board.organisation_id').on('member.user_id', '=', viewer.userId))
-		.leftJoin('user_session', (j) =>
-			j
-				.on('user_session.id', '=', viewer.sessionId)
-				.onRef('user_session.organisation_id', '=', 'board.organisation_id')
-				.on('user_session.user_id', '=', viewer.userId)
-		)
-		.select([
-			'board.id',
-			'board.organisation_id',
-			'board.survey_id',
-			'board.frozen_at',
-			'survey.status',
-			'survey.archived_at',
-			'member.role',
-			'user_session.expires_at as session_expires_at'
-		])
-		.where('board.id', '=', boardId)
-		.where('board.organisation_id', '=', viewer.organisationId)
-		.executeTakeFirst();
+	// The session is asked of auth/ beside the board query (at the same time): the append's own SQL
+	// check (persistence.ts) is what holds at the moment of a write.
+	const [row, sessionLive] = await Promise.all([
+		db
+			.selectFrom('board')
+			.innerJoin('survey', (j) => j.onRef('survey.id', '=', 'board.survey_id').onRef('survey.organisation_id', '=', 'board.organisation_id'))
+			.innerJoin('member', (j) => j.onRef('member.organisation_id', '=', 'board.organisation_id').on('member.user_id', '=', viewer.userId))
+			.select([
+				'board.id',
+				'board.organisation_id',
+				'board.survey_id',
+				'board.frozen_at',
+				'survey.status',
+				'survey.archived_at',
+				'member.role'
+			])
+			.where('board.id', '=', boardId)
+			.where('board.organisation_id', '=', viewer.organisationId)
+			.executeTakeFirst(),
+		isSessionLive(db, viewer)
+	]);
 	if (!row || !can(row.role, 'board.read')) return null;
-	const sessionLive = row.session_expires_at !== null && new Date(row.session_expires_at).getTime() > Date.now();
 	const { readOnly, reason } = boardAccess({
 		role: row.role,
 		surveyStatus: row.status,

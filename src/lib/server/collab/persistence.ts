@@ -55,6 +55,8 @@ const APPEND_SQL = `
  * Appends updates in one statement, each only if, at this moment, the board belongs to the
  * organisation, is not frozen, its survey is not archived, the session is live and the board-access
  * policy lets the member's role write in the survey's status (both read afresh for every update).
+ * The session is checked in this SQL rather than through auth/liveness.ts on purpose: it has to
+ * hold at the moment of the write, in the same statement, not a query earlier.
  * Returns, per update, its seq when stored or null when refused. The statement is its own
  * transaction: when the promise resolves the rows are committed. It runs as a named (prepared)
  * statement: planning this join costs more than running it.
@@ -78,52 +80,9 @@ export async function appendUpdates(db: Queryable, items: PendingUpdate[]): Prom
 	return out;
 }
 
-export interface LoadedBoard {
-	/** seq of every log row applied (the snapshot's rows are not listed). */
-	seqs: string[];
-	snapshotSeq: string;
-	/** Rows that could not be applied (logged, skipped). */
-	bad: string[];
-}
-
-/**
- * Applies the stored state of a board to `doc`: the snapshot, then every row still in the log.
- * Both are read in one repeatable-read transaction so a compaction in between cannot hide rows.
- */
-export async function loadInto(db: DB, boardId: string, doc: Y.Doc, origin: unknown = 'storage'): Promise<LoadedBoard | null> {
-	const read = await db
-		.transaction()
-		.setIsolationLevel('repeatable read')
-		.execute(async (trx) => {
-			const board = await trx.selectFrom('board').select(['snapshot', 'snapshot_seq']).where('id', '=', boardId).executeTakeFirst();
-			if (!board) return null;
-			const rows = await trx.selectFrom('board_update').select(['seq', 'update']).where('board_id', '=', boardId).orderBy('seq').execute();
-			return { board, rows };
-		});
-	if (!read) return null;
-	const bad: string[] = [];
-	if (read.board.snapshot) Y.applyUpdate(doc, read.board.snapshot, origin);
-	for (const row of read.rows) {
-		try {
-			Y.applyUpdate(doc, row.update, origin);
-		} catch (e) {
-			bad.push(row.seq);
-			console.error(`[collab] board ${boardId}: stored update ${row.seq} cannot be applied: ${(e as Error).message}`);
-		}
-	}
-	return { seqs: read.rows.map((r) => r.seq), snapshotSeq: read.board.snapshot_seq, bad };
-}
-
-/** The whole stored document of a board as one update (snapshot and log merged), or null. */
-export async function readDocument(db: DB, boardId: string): Promise<Uint8Array | null> {
-	const doc = new Y.Doc({ gc: true });
-	try {
-		const loaded = await loadInto(db, boardId, doc);
-		return loaded ? Y.encodeStateAsUpdate(doc) : null;
-	} finally {
-		doc.destroy();
-	}
-}
+// Loading a board's stored document (snapshot + log) is a repository of its own, shared with
+// the pages and exports: src/lib/server/db/board-document.ts.
+export { loadInto, readDocument, type LoadedBoard } from '../db/board-document';
 
 export interface CompactionResult {
 	merged: number;

@@ -41,43 +41,6 @@ export function isCoveredBy(doc: Y.Doc, d: DecodedUpdate): boolean {
 	return true;
 }
 
-/** Point statuses that record a review decision: only roles that may decide can write them. */
-export const REVIEW_DECISIONS: ReadonlySet<string> = new Set(['approved', 'rejected', 'flagged']);
-
-/**
- * The review decision an update would write into a point's status, or null. Yjs does not always
- * name the map key inside an update (an overwrite refers to the previous entry instead), so the
- * update is applied to a shadow copy of the room's document and the change is read from there.
- * Returns whether the shadow is still usable (false when the update was refused, since the
- * shadow then holds a change the room never got).
- */
-export function reviewDecisionIn(shadow: Y.Doc, update: Uint8Array): string | null {
-	const points = shadow.getMap<unknown>('points');
-	let decision: string | null = null;
-	const inspect = (tr: Y.Transaction) => {
-		for (const [type, keys] of tr.changed) {
-			if ((type as unknown) === points) {
-				// A point added (or replaced) whole: its status must not be a decision.
-				for (const key of keys) {
-					const m = points.get(key as string);
-					const status = m instanceof Y.Map ? m.get('status') : undefined;
-					if (typeof status === 'string' && REVIEW_DECISIONS.has(status)) decision = status;
-				}
-			} else if (type instanceof Y.Map && type.parent === points && keys.has('status')) {
-				const status = type.get('status');
-				if (typeof status === 'string' && REVIEW_DECISIONS.has(status)) decision = status;
-			}
-		}
-	};
-	shadow.on('afterTransaction', inspect);
-	try {
-		Y.applyUpdate(shadow, update);
-	} finally {
-		shadow.off('afterTransaction', inspect);
-	}
-	return decision;
-}
-
 /** Brings a shadow copy up to date with the room's document (only what it lacks). */
 export function catchUpShadow(shadow: Y.Doc, doc: Y.Doc): void {
 	Y.applyUpdate(shadow, Y.encodeStateAsUpdate(doc, Y.encodeStateVector(shadow)));

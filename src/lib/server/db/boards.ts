@@ -1,9 +1,9 @@
 // Boards: one live board per machine photo or drawing within a survey. The board's content is a
-// Yjs document kept by the collab layer (src/lib/server/collab); this module holds its metadata.
+// Yjs document (board-document.ts; kept live by src/lib/server/collab); this module holds its
+// metadata. Changes open live boards must hear of go through src/lib/server/boards/service.ts.
 import type { DB } from './index';
 import { isSettled } from '../../survey/board-access';
-import { announceBoardChange } from '../collab/notify';
-import { readDocument } from '../collab/persistence';
+import { readDocument } from './board-document';
 
 const columns = [
 	'board.id',
@@ -117,26 +117,20 @@ export async function setMedia(db: DB, organisationId: string, id: string, media
 
 /**
  * Freezes one board (read-only from now on). The row lock waits for updates being appended and
- * makes later ones see the freeze; open boards hear of it when the transaction commits.
+ * makes later ones see the freeze. Run it in a transaction that announces the change:
+ * `freezeBoard` in src/lib/server/boards/service.ts.
  */
 export async function freeze(db: DB, organisationId: string, id: string) {
-	return db.transaction().execute(async (trx) => {
-		const b = await trx.selectFrom('board').select(['id', 'frozen_at']).where('organisation_id', '=', organisationId).where('id', '=', id).forUpdate().executeTakeFirst();
-		if (!b) return false;
-		if (!b.frozen_at) await trx.updateTable('board').set({ frozen_at: new Date() }).where('id', '=', id).execute();
-		await announceBoardChange(trx, [id]);
-		return true;
-	});
+	const b = await db.selectFrom('board').select(['id', 'frozen_at']).where('organisation_id', '=', organisationId).where('id', '=', id).forUpdate().executeTakeFirst();
+	if (!b) return false;
+	if (!b.frozen_at) await db.updateTable('board').set({ frozen_at: new Date() }).where('id', '=', id).execute();
+	return true;
 }
 
-/** Lifts a freeze (e.g. when a revision is reopened). */
+/** Lifts a freeze (e.g. when a revision is reopened); announce it: `unfreezeBoard` in boards/service.ts. */
 export async function unfreeze(db: DB, organisationId: string, id: string) {
-	return db.transaction().execute(async (trx) => {
-		const r = await trx.updateTable('board').set({ frozen_at: null }).where('organisation_id', '=', organisationId).where('id', '=', id).returning('id').executeTakeFirst();
-		if (!r) return false;
-		await announceBoardChange(trx, [id]);
-		return true;
-	});
+	const r = await db.updateTable('board').set({ frozen_at: null }).where('organisation_id', '=', organisationId).where('id', '=', id).returning('id').executeTakeFirst();
+	return r !== undefined;
 }
 
 /**

@@ -11,9 +11,16 @@ export interface DbHandle {
 	close(): Promise<void>;
 }
 
+/** The names the app's pools give PostgreSQL (pg_stat_activity.application_name). */
+export const APP_POOL_NAME = 'spotface-app';
+export const COLLAB_POOL_NAME = 'spotface-collab';
+export const ADAPTER_POOL_NAME = 'spotface-adapter';
+/** Scripts, tests and benchmarks. */
+export const TOOL_POOL_NAME = 'spotface-tool';
+
 /** One pool and one Kysely instance per process; callers pass the URL (no env reads here). */
-export function createDb(connectionString: string, max = 10, label = 'app pool'): DbHandle {
-	const pool = new pg.Pool({ connectionString, max });
+export function createDb(connectionString: string, max = 10, label = 'app pool', applicationName = TOOL_POOL_NAME): DbHandle {
+	const pool = new pg.Pool({ connectionString, max, application_name: applicationName });
 	// A client that loses its connection, idle or checked out (Kysely holds one through a
 	// transaction), must not crash the process.
 	guardPool(pool, label);

@@ -5,7 +5,7 @@
 import type { DB } from '../db/index';
 import type { Role } from '../db/types';
 import { can } from '../auth/guard';
-import { announceBoardChange } from '../collab/notify';
+import { announceBoardState } from '../boards/service';
 import { record } from '../db/audit';
 import { checkTransition, SURVEY_STATUS_LABEL, TRANSITION_NOTE_MAX, type SurveyStatus, type TransitionName } from '../../survey/states';
 import { RevisionContentError, writeRevision, type RevisionExceptionsNeeded } from './revisions';
@@ -124,7 +124,7 @@ export async function transitionSurvey(db: DB, input: TransitionInput): Promise<
 			})
 			.returning('id')
 			.executeTakeFirstOrThrow();
-		await announceBoardChange(
+		await announceBoardState(
 			trx,
 			boards.map((b) => b.id)
 		);
@@ -176,7 +176,7 @@ export async function archiveSurvey(db: DB, organisationId: string, surveyId: st
 			subjectId: surveyId,
 			data: { status: r.status, statusLabel: SURVEY_STATUS_LABEL[r.status] }
 		});
-		await announceBoardChange(
+		await announceBoardState(
 			trx,
 			boards.map((b) => b.id)
 		);

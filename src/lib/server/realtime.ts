@@ -1,31 +1,46 @@
-// socket.io on the same HTTP server as the app. The handshake requires a valid session; the
-// live board (src/lib/server/collab) builds on the authenticated socket. With several server
-// processes on one database, the socket.io PostgreSQL adapter keeps their rooms in step.
+// socket.io on the app's own HTTP server, built with the app so a process has one module
+// instance: the handshake checks the session with the same lucia instance and database pool as
+// the pages (context.ts), and the live board (collab/) queries through that pool too. Only the
+// writer's appends with the board-state LISTEN connection ('spotface-collab') and the socket.io
+// PostgreSQL adapter ('spotface-adapter', several processes on one database) have pools of their
+// own. hooks.server.ts publishes `attachRealtime` for server/index.js; `npm run dev` loads this
+// module through Vite (server/dev-plugin.ts).
 import type { Server as HttpServer } from 'node:http';
 import { monitorEventLoopDelay } from 'node:perf_hooks';
 import pg from 'pg';
 import { Server } from 'socket.io';
 import { createAdapter } from '@socket.io/postgres-adapter';
-import { attachCollab } from '../src/lib/server/collab/server';
-import { collabOptionsFromEnv, type CollabOptions } from '../src/lib/server/collab/config';
-import { createDb } from '../src/lib/server/db/index';
-import { guardPool, isConnectionError } from '../src/lib/server/db-health';
-import { adapterPool as guardedAdapterPool } from '../src/lib/server/collab/adapter-pool';
-import { createAuth } from '../src/lib/server/auth/lucia';
-import { viewerFromSession } from '../src/lib/server/auth/viewer';
-import type { Viewer } from '../src/lib/server/auth/lucia';
-import type { HandshakeErrorData } from '../src/lib/board/sync/protocol';
+import { context } from './context';
+import { attachCollab } from './collab/server';
+import { collabOptionsFromEnv, type CollabOptions } from './collab/config';
+import { guardPool, isConnectionError } from './db-health';
+import { ADAPTER_POOL_NAME, COLLAB_POOL_NAME } from './db/index';
+import { adapterPool as guardedAdapterPool } from './collab/adapter-pool';
+import { viewerFromSession } from './auth/viewer';
+import type { Viewer } from './auth/lucia';
+import type { HandshakeErrorData } from '../board/sync/protocol';
+
+/** Where hooks.server.ts publishes the attach function for the production entry (server/index.js). */
+export const REALTIME_KEY = Symbol.for('spotface.realtime');
 
 export interface RealtimeOptions {
-	databaseUrl: string;
-	origin: string;
 	/** Live board limits and timings; defaults from the environment (COLLAB_*). */
 	collab?: CollabOptions;
 }
 
-export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
-	const handle = createDb(opts.databaseUrl, 10, 'live-board pool');
-	const auth = createAuth(handle.pool, { secure: opts.origin.startsWith('https:') });
+export interface Realtime {
+	io: Server;
+	close(): Promise<void>;
+}
+
+/** What server/index.js finds under REALTIME_KEY on globalThis. */
+export interface RealtimeEntry {
+	attachRealtime(httpServer: HttpServer, opts?: RealtimeOptions): Realtime;
+	isConnectionError(err: unknown): boolean;
+}
+
+export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions = {}): Realtime {
+	const { handle, auth, config } = context();
 	const collabOptions = opts.collab ?? collabOptionsFromEnv(process.env);
 	const io = new Server(httpServer, {
 		path: '/socket.io',
@@ -33,17 +48,19 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
 		// Above the collab limit, so an oversized board message reaches the collab layer, which
 		// logs why it closes the socket; engine.io cuts off anything larger still.
 		maxHttpBufferSize: Math.max(2_000_000, collabOptions.maxMessageBytes + 64_000),
-		cors: { origin: opts.origin, credentials: true },
+		cors: { origin: config.origin, credentials: true },
 		// Browsers send Origin on the WebSocket handshake too; only the app's own pages may connect
 		// with the session cookie. (Node clients send none.)
 		allowRequest: (req, callback) => {
 			const origin = req.headers.origin;
-			callback(null, !origin || origin === opts.origin);
+			callback(null, !origin || origin === config.origin);
 		}
 	});
+	// The writer (group commit, at most a few connections at a time) and one LISTEN connection.
+	const collabPool = guardPool(new pg.Pool({ connectionString: config.databaseUrl, max: 4, application_name: COLLAB_POOL_NAME }), 'live-board pool');
 	let adapterPool: pg.Pool | null = null;
 	if (collabOptions.cluster) {
-		adapterPool = guardPool(new pg.Pool({ connectionString: opts.databaseUrl, max: 4 }), 'adapter pool');
+		adapterPool = guardPool(new pg.Pool({ connectionString: config.databaseUrl, max: 4, application_name: ADAPTER_POOL_NAME }), 'adapter pool');
 		io.adapter(
 			// Its LISTEN client gets an error listener and is given back broken when lost (see adapter-pool.ts).
 			createAdapter(guardedAdapterPool(adapterPool), {
@@ -73,7 +90,7 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
 		}
 	});
 
-	const collab = attachCollab({ io, db: handle.db, pool: handle.pool, options: collabOptions });
+	const collab = attachCollab({ io, db: handle.db, pool: collabPool, options: collabOptions });
 	// `kill -USR2 <pid>` prints what the live board holds in this process: rooms, sockets, storage
 	// timings, event-loop delay and memory (after a full collection when run with --expose-gc).
 	const loopDelay = monitorEventLoopDelay({ resolution: 1 });
@@ -95,15 +112,19 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions) {
 
 	return {
 		io,
-		db: handle.db,
-		collab,
 		async close() {
 			process.off('SIGUSR2', printStats);
 			loopDelay.disable();
 			await new Promise<void>((resolve) => io.close(() => resolve()));
 			await collab.close();
 			await adapterPool?.end().catch(() => {});
-			await handle.close();
+			await collabPool.end().catch(() => {});
 		}
 	};
+}
+
+/** Makes the attach function reachable from the production entry; called once the app initialises. */
+export function publishRealtime() {
+	const entry: RealtimeEntry = { attachRealtime, isConnectionError };
+	(globalThis as Record<symbol, unknown>)[REALTIME_KEY] = entry;
 }

@@ -1,0 +1,95 @@
+// Hook "check": everything that can be wrong with an update, found before it is stored: size
+// limits, byte budgets, a strict decode (malformed → the socket is closed), the document size,
+// the board policy (src/lib/board/model/policy.ts, the same the browser runs) on the room's
+// shadow copy, and client-id ownership (client-ids.ts). Read-only members skip the policy:
+// the store's own check refuses them with the reason.
+import * as Y from 'yjs';
+import { Malformed } from '../../../board/sync/frames';
+import { checkBoardChange, cloneDoc } from '../../../board/model/policy';
+import { refusalMessage } from '../../../board/sync/policy-check';
+import type { MessageAck } from '../../../board/sync/protocol';
+import type { CollabContext } from '../context';
+import { who } from '../context';
+import type { BoardRoom, RoomMember } from '../room';
+import { kib, spend } from '../budget';
+import { catchUpShadow, decodeUpdateStrict, isCoveredBy, isEmptyUpdate, type DecodedUpdate } from '../update-check';
+import { ensureOwnership, structClientIds } from '../client-ids';
+import { overBudget, refused, stored } from './acknowledge';
+
+/**
+ * The checks that need nothing but the message and the room, run at once; a Malformed throw
+ * closes the socket before its next message is read. What passes goes on to `checkRights`.
+ */
+export function checkUpdate(ctx: CollabContext, room: BoardRoom, member: RoomMember, update: Uint8Array): { ok: true; decoded: DecodedUpdate } | { ok: false; ack: MessageAck } {
+	const { options, log } = ctx;
+	const size = update.byteLength;
+	if (size > options.maxUpdateBytes) {
+		log.warn(`[collab] refused an update from ${who(member.socket)}: ${size} bytes, over the ${options.maxUpdateBytes}-byte limit`);
+		return { ok: false, ack: refused(`This change is too large to save (${kib(size)}; the limit is ${kib(options.maxUpdateBytes)}). It was not saved.`) };
+	}
+	const budget = spend(member.bytes, room.bytes, size);
+	if (!budget.ok) return { ok: false, ack: overBudget(ctx, room, member, budget.who, budget.retryAfterMs) };
+	let decoded: DecodedUpdate;
+	try {
+		decoded = decodeUpdateStrict(update);
+	} catch (e) {
+		throw new Malformed(`update does not decode: ${(e as Error).message}`);
+	}
+	// Nothing new (e.g. a read-only member's sync step 2 after a reconnect): nothing to store.
+	if (isEmptyUpdate(decoded) || isCoveredBy(room.doc, decoded)) return { ok: false, ack: stored() };
+	if (member.readOnly) return { ok: true, decoded };
+	if (!room.size.fits(room.doc, size, options.maxDocumentBytes)) {
+		log.warn(`[collab] refused an update from ${who(member.socket)}: the board would pass ${options.maxDocumentBytes} bytes`);
+		return { ok: false, ack: refused(`This board has reached its size limit (${kib(options.maxDocumentBytes)}). Your change was not saved.`) };
+	}
+	return { ok: true, decoded };
+}
+
+/**
+ * The member's rights over the change: the board policy, then client-id ownership. Null when it
+ * may be stored, else the reason in words for the person. Runs in the member's queue (after
+ * its earlier updates were checked), since both depend on what came before.
+ */
+export async function checkRights(ctx: CollabContext, room: BoardRoom, member: RoomMember, update: Uint8Array, decoded: DecodedUpdate): Promise<string | null> {
+	if (member.readOnly) return null; // the store's own check refuses it with the reason
+	const refusal = checkPolicy(ctx, room, member, update);
+	if (refusal) {
+		ctx.log.warn(`[collab] refused an update from ${who(member.socket)}: ${refusal}`);
+		return refusal;
+	}
+	return checkClientIds(ctx, room, member, decoded);
+}
+
+/**
+ * The board policy on the room's shadow copy: null when the update may be stored, else the
+ * reasons in words for the person.
+ */
+function checkPolicy(ctx: CollabContext, room: BoardRoom, member: RoomMember, update: Uint8Array): string | null {
+	if (!room.shadow) room.shadow = cloneDoc(room.doc);
+	else catchUpShadow(room.shadow, room.doc);
+	const { options } = ctx;
+	const r = checkBoardChange(
+		room.doc,
+		update,
+		{ role: member.viewer.role, userId: member.viewer.userId, name: member.viewer.name },
+		{
+			frozen: false, // read-only members and frozen boards are refused by the store's own check
+			limits: { ...options.boardLimits, maxUpdateBytes: options.maxUpdateBytes, maxDocumentBytes: options.maxDocumentBytes },
+			documentBytes: room.size.bound
+		},
+		{ shadow: room.shadow }
+	);
+	if (r.ok) return null;
+	// The shadow now holds a change the room will never get: start it afresh next time.
+	room.dropShadow();
+	return refusalMessage(r.refusals.map((x) => x.reason));
+}
+
+/** Client ids belong to the member who introduced them: null when the update keeps to its own. */
+async function checkClientIds(ctx: CollabContext, room: BoardRoom, member: RoomMember, decoded: DecodedUpdate): Promise<string | null> {
+	const verdict = await ensureOwnership(ctx.db, room.owners, room.id, member.viewer.userId, structClientIds(decoded), (id) => Y.getState(room.doc.store, id));
+	if (verdict.ok) return null;
+	ctx.log.warn(`[collab] refused an update from ${who(member.socket)}: writes under client id ${verdict.clientId} of someone else`);
+	room.dropShadow();
+	return verdict.reason;
+}
