@@ -23,6 +23,8 @@ const cluster = startCluster({
 });
 let code = 1;
 try {
+	step('Linting (Prettier)', 'npx', ['prettier', '--check', '.']);
+	step('Linting (ESLint)', 'npx', ['eslint', '.']);
 	step('Building the app', 'npx', ['vite', 'build', '--logLevel', 'error']);
 	step('Type-checking (svelte-check)', 'npx', ['svelte-check', '--tsconfig', './tsconfig.json', '--threshold', 'error', '--output', 'human']);
 	log('Running every test: unit, integration, browser');
