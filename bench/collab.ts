@@ -50,8 +50,15 @@ const RATE = Number(args.rate);
 const PROCESSES = Number(args.processes);
 const GRACE_MS = Number(args.grace);
 const COMMIT = args.commit === 'async' ? 'async' : 'sync';
-if (![SECONDS, WARMUP, BOARDS, CLIENTS, RATE, PROCESSES, GRACE_MS].every((n) => Number.isFinite(n) && n >= 0) || CLIENTS < 2 || PROCESSES < 1 || PROCESSES > 2) {
-	console.error('usage: npx tsx bench/collab.ts [--seconds N] [--warmup N] [--boards N] [--clients N≥2] [--rate edits/s] [--processes 1|2] [--grace ms] [--commit sync|async]');
+if (
+	![SECONDS, WARMUP, BOARDS, CLIENTS, RATE, PROCESSES, GRACE_MS].every((n) => Number.isFinite(n) && n >= 0) ||
+	CLIENTS < 2 ||
+	PROCESSES < 1 ||
+	PROCESSES > 2
+) {
+	console.error(
+		'usage: npx tsx bench/collab.ts [--seconds N] [--warmup N] [--boards N] [--clients N≥2] [--rate edits/s] [--processes 1|2] [--grace ms] [--commit sync|async]'
+	);
 	process.exit(2);
 }
 
@@ -84,14 +91,25 @@ function percentile(sorted: number[], p: number) {
 
 async function main() {
 	const started = now();
-	console.log(`machine load average at the start: ${loadavg().map((x) => x.toFixed(2)).join(' ')} (${cpus().length} CPUs)`);
-	console.log(`live board benchmark: ${BOARDS} boards × ${CLIENTS} clients, ${RATE} edits/s each, ${SECONDS} s measured after ${WARMUP} s warm-up, ${PROCESSES} server process(es), ${COMMIT === 'sync' ? 'synchronous commit (as in production)' : 'ASYNCHRONOUS commit (comparison only)'}`);
+	console.log(
+		`machine load average at the start: ${loadavg()
+			.map((x) => x.toFixed(2))
+			.join(' ')} (${cpus().length} CPUs)`
+	);
+	console.log(
+		`live board benchmark: ${BOARDS} boards × ${CLIENTS} clients, ${RATE} edits/s each, ${SECONDS} s measured after ${WARMUP} s warm-up, ${PROCESSES} server process(es), ${COMMIT === 'sync' ? 'synchronous commit (as in production)' : 'ASYNCHRONOUS commit (comparison only)'}`
+	);
 	const startCluster = startClusterJs as unknown as (o: { dir: string; port: number; dbName: string; log: () => void }) => {
 		url: string;
 		psql(sql: string): string;
 		stop(): void;
 	};
-	const cluster = startCluster({ dir: '.data/pg-bench', port: Number(process.env.SPOTFACE_BENCH_PG_PORT ?? 54349), dbName: 'postgres', log: () => {} });
+	const cluster = startCluster({
+		dir: '.data/pg-bench',
+		port: Number(process.env.SPOTFACE_BENCH_PG_PORT ?? 54349),
+		dbName: 'postgres',
+		log: () => {}
+	});
 	cluster.psql('alter system reset all');
 	cluster.psql('select pg_reload_conf()');
 	cluster.psql('drop database if exists spotface_bench with (force)');
@@ -235,9 +253,7 @@ async function main() {
 			const json = board.clients.map((p) => JSON.stringify(Y.encodeStateVector(p.doc)));
 			if (json.every((j) => j === json[0])) converged++;
 		}
-		const storedRows = Number(
-			(await probe.query(`select (select count(*) from board_update) + 0 as n`)).rows[0].n
-		);
+		const storedRows = Number((await probe.query(`select (select count(*) from board_update) + 0 as n`)).rows[0].n);
 
 		// ---- everyone leaves -----------------------------------------------------------------
 		await Promise.all(providers.map((p) => p.destroy()));
@@ -288,8 +304,14 @@ async function main() {
 			);
 		});
 		console.log(`benchmark process (all ${BOARDS * CLIENTS} clients) CPU while measuring: ${benchCpu.toFixed(1)} % of one core`);
-		console.log(`benchmark process event-loop delay: p99 ${(benchLoop.percentile(99) / 1e6 - 1).toFixed(2)} ms, max ${(benchLoop.max / 1e6 - 1).toFixed(2)} ms`);
-		console.log(`machine load average at the end: ${loadavg().map((x) => x.toFixed(2)).join(' ')} (${cpus().length} CPUs)`);
+		console.log(
+			`benchmark process event-loop delay: p99 ${(benchLoop.percentile(99) / 1e6 - 1).toFixed(2)} ms, max ${(benchLoop.max / 1e6 - 1).toFixed(2)} ms`
+		);
+		console.log(
+			`machine load average at the end: ${loadavg()
+				.map((x) => x.toFixed(2))
+				.join(' ')} (${cpus().length} CPUs)`
+		);
 		console.log(`boards unloaded ${unloadedAfter.toFixed(1)} s after the last client left (grace ${GRACE_MS / 1000} s)`);
 		console.log(`total run ${((now() - started) / 1000).toFixed(0)} s`);
 	} finally {

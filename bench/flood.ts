@@ -52,7 +52,8 @@ if (![SECONDS, SIZE, RATE, EDITS].every((n) => Number.isFinite(n) && n > 0)) {
 const now = () => performance.now();
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 const rssMB = (pid: number) => Number(/VmRSS:\s+(\d+) kB/.exec(readFileSync(`/proc/${pid}/status`, 'utf8'))?.[1] ?? NaN) / 1024;
-const pct = (sorted: number[], p: number) => (sorted.length ? sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)] : NaN);
+const pct = (sorted: number[], p: number) =>
+	sorted.length ? sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)] : NaN;
 
 function floodMessage(bytes: number): Uint8Array {
 	// Valid board content (points with long notes), so the flood costs the server a full check.
@@ -69,7 +70,11 @@ function floodMessage(bytes: number): Uint8Array {
 }
 
 async function main() {
-	console.log(`machine load average at the start: ${loadavg().map((x) => x.toFixed(2)).join(' ')} (${cpus().length} CPUs)`);
+	console.log(
+		`machine load average at the start: ${loadavg()
+			.map((x) => x.toFixed(2))
+			.join(' ')} (${cpus().length} CPUs)`
+	);
 	console.log(
 		`flood benchmark: ${SIZE / 1024} KB updates at ${RATE}/s for ${SECONDS} s (${((SIZE * RATE * SECONDS) / 2 ** 20).toFixed(1)} MB) on one board; ` +
 			`2 people on another board at ${EDITS} edits/s each; ${LIMITS ? 'default limits' : 'NO byte budgets or size limits'}`
@@ -79,7 +84,12 @@ async function main() {
 		psql(sql: string): string;
 		stop(): void;
 	};
-	const cluster = startCluster({ dir: '.data/pg-flood', port: Number(process.env.SPOTFACE_BENCH_PG_PORT ?? 54359), dbName: 'postgres', log: () => {} });
+	const cluster = startCluster({
+		dir: '.data/pg-flood',
+		port: Number(process.env.SPOTFACE_BENCH_PG_PORT ?? 54359),
+		dbName: 'postgres',
+		log: () => {}
+	});
 	cluster.psql('drop database if exists spotface_flood with (force)');
 	cluster.psql('create database spotface_flood');
 	const url = cluster.url.replace(/\/postgres$/, '/spotface_flood');
@@ -202,17 +212,30 @@ async function main() {
 		const slowed = acks.filter((x) => 'retry' in x).length;
 		const refused = acks.filter((x) => 'refused' in x).length;
 		console.log('');
-		console.log(`flood: ${messages.length} updates sent in ${floodSeconds.toFixed(1)} s; accepted ${ok}, slowed ("not now") ${slowed}, refused ${refused}` + (closedBy ? `; socket closed: ${closedBy}` : ''));
+		console.log(
+			`flood: ${messages.length} updates sent in ${floodSeconds.toFixed(1)} s; accepted ${ok}, slowed ("not now") ${slowed}, refused ${refused}` +
+				(closedBy ? `; socket closed: ${closedBy}` : '')
+		);
 		console.log(
 			`flood board stored: snapshot ${(Number(snapshot.bytes) / 2 ** 20).toFixed(2)} MB + ${stored.n} log rows ${(Number(stored.bytes ?? 0) / 2 ** 20).toFixed(2)} MB`
 		);
 		console.log(`other board, edit → other person (ms):   samples     p50     p99     max`);
-		console.log(`   idle                              ${String(idle.length).padStart(10)} ${f2(pct(idle, 50))} ${f2(pct(idle, 99))} ${f2(idle.at(-1) ?? NaN)}`);
-		console.log(`   during the flood                  ${String(flood.length).padStart(10)} ${f2(pct(flood, 50))} ${f2(pct(flood, 99))} ${f2(flood.at(-1) ?? NaN)}`);
+		console.log(
+			`   idle                              ${String(idle.length).padStart(10)} ${f2(pct(idle, 50))} ${f2(pct(idle, 99))} ${f2(idle.at(-1) ?? NaN)}`
+		);
+		console.log(
+			`   during the flood                  ${String(flood.length).padStart(10)} ${f2(pct(flood, 50))} ${f2(pct(flood, 99))} ${f2(flood.at(-1) ?? NaN)}`
+		);
 		const ratio = pct(flood, 99) / pct(idle, 99);
 		console.log(`p99 during / idle: ${ratio.toFixed(2)}× (goal ≤ 2×) ${ratio <= 2 ? 'MET' : 'NOT MET'}`);
-		console.log(`server RSS (MB): before the flood ${rssBefore.toFixed(1)}, peak ${peak.toFixed(1)}, after ${rssAfter.toFixed(1)}; growth to peak ${(peak - rssBefore).toFixed(1)}`);
-		console.log(`machine load average at the end: ${loadavg().map((x) => x.toFixed(2)).join(' ')}`);
+		console.log(
+			`server RSS (MB): before the flood ${rssBefore.toFixed(1)}, peak ${peak.toFixed(1)}, after ${rssAfter.toFixed(1)}; growth to peak ${(peak - rssBefore).toFixed(1)}`
+		);
+		console.log(
+			`machine load average at the end: ${loadavg()
+				.map((x) => x.toFixed(2))
+				.join(' ')}`
+		);
 	} finally {
 		flooder?.disconnect();
 		await Promise.all(providers.map((p) => p.destroy()));

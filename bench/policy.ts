@@ -28,10 +28,29 @@ function board(points: number, routes: number, zones: number) {
 	setScale(doc, { a: [0, 0], b: [100, 0], lengthMm: 250 });
 	const ids: string[] = [];
 	for (let i = 0; i < points; i++) {
-		ids.push(addPoint(doc, { x: i % 1000, y: i, surface: 'cast_housing', mounting: 'stud', flatDiameterMm: 30, notes: 'Seat spot-faced on site.' }));
+		ids.push(
+			addPoint(doc, { x: i % 1000, y: i, surface: 'cast_housing', mounting: 'stud', flatDiameterMm: 30, notes: 'Seat spot-faced on site.' })
+		);
 	}
-	for (let i = 0; i < routes; i++) addRoute(doc, { pointId: ids[i % ids.length], vertices: [[i, 0], [i, 50], [i + 40, 90]], crossSectionMm2: 0.75 });
-	for (let i = 0; i < zones; i++) addZone(doc, { polygon: [[i, 0], [i + 5, 0], [i + 5, 5]], kind: 'shaft' });
+	for (let i = 0; i < routes; i++)
+		addRoute(doc, {
+			pointId: ids[i % ids.length],
+			vertices: [
+				[i, 0],
+				[i, 50],
+				[i + 40, 90]
+			],
+			crossSectionMm2: 0.75
+		});
+	for (let i = 0; i < zones; i++)
+		addZone(doc, {
+			polygon: [
+				[i, 0],
+				[i + 5, 0],
+				[i + 5, 5]
+			],
+			kind: 'shaft'
+		});
 	return { doc, ids };
 }
 

@@ -30,11 +30,19 @@ async function seedOrg(db: ReturnType<typeof createDb>['db'], name: string, emai
 	await db.insertInto('member').values({ organisation_id: org.id, user_id: userId, role: 'engineer' }).execute();
 	const sites = [];
 	for (let s = 0; s < 4; s++) {
-		const site = await db.insertInto('site').values({ organisation_id: org.id, name: `${name} site ${s + 1}` }).returning('id').executeTakeFirstOrThrow();
+		const site = await db
+			.insertInto('site')
+			.values({ organisation_id: org.id, name: `${name} site ${s + 1}` })
+			.returning('id')
+			.executeTakeFirstOrThrow();
 		const areas = [];
 		for (let a = 0; a < 5; a++) {
 			areas.push(
-				await db.insertInto('area').values({ organisation_id: org.id, site_id: site.id, name: `Area ${s + 1}.${a + 1}` }).returning('id').executeTakeFirstOrThrow()
+				await db
+					.insertInto('area')
+					.values({ organisation_id: org.id, site_id: site.id, name: `Area ${s + 1}.${a + 1}` })
+					.returning('id')
+					.executeTakeFirstOrThrow()
 			);
 		}
 		sites.push({ id: site.id, areas });
@@ -56,14 +64,30 @@ async function seedOrg(db: ReturnType<typeof createDb>['db'], name: string, emai
 			notes: i % 10 === 0 ? 'Bearing housing repainted; check seat' : ''
 		};
 	});
-	for (let i = 0; i < rows.length; i += 500) await db.insertInto('machine').values(rows.slice(i, i + 500)).execute();
+	for (let i = 0; i < rows.length; i += 500)
+		await db
+			.insertInto('machine')
+			.values(rows.slice(i, i + 500))
+			.execute();
 	return { orgId: org.id, siteId: sites[0].id };
 }
 
 async function main() {
-	console.log(`machine load average at the start: ${loadavg().map((x) => x.toFixed(2)).join(' ')} (${cpus().length} CPUs)`);
-	const startCluster = startClusterJs as unknown as (o: { dir: string; port: number; dbName: string; log: () => void }) => { url: string; psql(sql: string): string };
-	const cluster = startCluster({ dir: '.data/pg-bench', port: Number(process.env.SPOTFACE_BENCH_PG_PORT ?? 54349), dbName: 'postgres', log: () => {} });
+	console.log(
+		`machine load average at the start: ${loadavg()
+			.map((x) => x.toFixed(2))
+			.join(' ')} (${cpus().length} CPUs)`
+	);
+	const startCluster = startClusterJs as unknown as (o: { dir: string; port: number; dbName: string; log: () => void }) => {
+		url: string;
+		psql(sql: string): string;
+	};
+	const cluster = startCluster({
+		dir: '.data/pg-bench',
+		port: Number(process.env.SPOTFACE_BENCH_PG_PORT ?? 54349),
+		dbName: 'postgres',
+		log: () => {}
+	});
 	cluster.psql('drop database if exists spotface_bench_register with (force)');
 	cluster.psql('create database spotface_bench_register');
 	const url = cluster.url.replace(/\/postgres$/, '/spotface_bench_register');
@@ -111,7 +135,9 @@ async function main() {
 			}
 		}
 		times.sort((a, b) => a - b);
-		console.log(`${label.padEnd(40)} ${rows.padStart(6)} ${percentile(times, 50).toFixed(1).padStart(8)} ${percentile(times, 95).toFixed(1).padStart(8)} ${times[times.length - 1].toFixed(1).padStart(8)}`);
+		console.log(
+			`${label.padEnd(40)} ${rows.padStart(6)} ${percentile(times, 50).toFixed(1).padStart(8)} ${percentile(times, 95).toFixed(1).padStart(8)} ${times[times.length - 1].toFixed(1).padStart(8)}`
+		);
 	}
 	await app.stop();
 	await h.close();

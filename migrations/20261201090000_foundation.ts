@@ -27,9 +27,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('id', 'uuid', (c) => c.primaryKey().defaultTo(sql`gen_random_uuid()`))
 		.addColumn('organisation_id', 'uuid', (c) => c.notNull().references('organisation.id').onDelete('cascade'))
 		.addColumn('user_id', 'text', (c) => c.notNull().references('app_user.id').onDelete('cascade'))
-		.addColumn('role', 'text', (c) =>
-			c.notNull().check(sql`role in ('admin', 'engineer', 'technician', 'viewer')`)
-		)
+		.addColumn('role', 'text', (c) => c.notNull().check(sql`role in ('admin', 'engineer', 'technician', 'viewer')`))
 		.addColumn('created_at', 'timestamptz', (c) => c.notNull().defaultTo(sql`now()`))
 		.addUniqueConstraint('member_org_user_key', ['organisation_id', 'user_id'])
 		.execute();
@@ -48,9 +46,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('id', 'uuid', (c) => c.primaryKey().defaultTo(sql`gen_random_uuid()`))
 		.addColumn('organisation_id', 'uuid', (c) => c.notNull().references('organisation.id').onDelete('cascade'))
 		.addColumn('email', 'text', (c) => c.notNull())
-		.addColumn('role', 'text', (c) =>
-			c.notNull().check(sql`role in ('admin', 'engineer', 'technician', 'viewer')`)
-		)
+		.addColumn('role', 'text', (c) => c.notNull().check(sql`role in ('admin', 'engineer', 'technician', 'viewer')`))
 		.addColumn('token_hash', 'text', (c) => c.notNull().unique())
 		.addColumn('invited_by', 'text', (c) => c.references('app_user.id').onDelete('set null'))
 		.addColumn('expires_at', 'timestamptz', (c) => c.notNull())
@@ -81,11 +77,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('data', 'jsonb', (c) => c.notNull().defaultTo(sql`'{}'::jsonb`))
 		.addColumn('created_at', 'timestamptz', (c) => c.notNull().defaultTo(sql`now()`))
 		.execute();
-	await db.schema
-		.createIndex('audit_event_org_idx')
-		.on('audit_event')
-		.columns(['organisation_id', 'created_at'])
-		.execute();
+	await db.schema.createIndex('audit_event_org_idx').on('audit_event').columns(['organisation_id', 'created_at']).execute();
 
 	await db.schema
 		.createTable('mail_outbox')
@@ -94,7 +86,12 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('to_address', 'text', (c) => c.notNull())
 		.addColumn('subject', 'text', (c) => c.notNull())
 		.addColumn('body_text', 'text', (c) => c.notNull())
-		.addColumn('status', 'text', (c) => c.notNull().defaultTo('queued').check(sql`status in ('queued', 'sent', 'failed')`))
+		.addColumn('status', 'text', (c) =>
+			c
+				.notNull()
+				.defaultTo('queued')
+				.check(sql`status in ('queued', 'sent', 'failed')`)
+		)
 		.addColumn('error', 'text')
 		.addColumn('attempts', 'integer', (c) => c.notNull().defaultTo(0))
 		.addColumn('created_at', 'timestamptz', (c) => c.notNull().defaultTo(sql`now()`))

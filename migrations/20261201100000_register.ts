@@ -42,7 +42,12 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('area_id', 'uuid', (c) => c.notNull())
 		.addColumn('name', 'text', (c) => c.notNull())
 		.addColumn('tag', 'text')
-		.addColumn('voltage_v', 'double precision', (c) => c.notNull().defaultTo(24).check(sql`voltage_v > 0 and voltage_v <= 60`))
+		.addColumn('voltage_v', 'double precision', (c) =>
+			c
+				.notNull()
+				.defaultTo(24)
+				.check(sql`voltage_v > 0 and voltage_v <= 60`)
+		)
 		.addColumn('max_current_a', 'double precision', (c) => c.check(sql`max_current_a is null or max_current_a > 0`))
 		.addColumn('location_note', 'text', (c) => c.notNull().defaultTo(''))
 		.addColumn('archived_at', 'timestamptz')
@@ -61,11 +66,14 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('area_id', 'uuid')
 		.addColumn('name', 'text', (c) => c.notNull())
 		.addColumn('tag', 'text')
-		.addColumn('kind', 'text', (c) =>
-			c.notNull().check(sql`kind in ('motor', 'pump', 'fan', 'compressor', 'gearbox', 'blower', 'other')`)
-		)
+		.addColumn('kind', 'text', (c) => c.notNull().check(sql`kind in ('motor', 'pump', 'fan', 'compressor', 'gearbox', 'blower', 'other')`))
 		.addColumn('speed_rpm', 'double precision', (c) => c.check(sql`speed_rpm is null or speed_rpm > 0`))
-		.addColumn('speed_mode', 'text', (c) => c.notNull().defaultTo('constant').check(sql`speed_mode in ('constant', 'variable')`))
+		.addColumn('speed_mode', 'text', (c) =>
+			c
+				.notNull()
+				.defaultTo('constant')
+				.check(sql`speed_mode in ('constant', 'variable')`)
+		)
 		.addColumn('speed_signal', 'boolean', (c) => c.notNull().defaultTo(false))
 		.addColumn('power_kw', 'double precision', (c) => c.check(sql`power_kw is null or power_kw > 0`))
 		.addColumn('foundation', 'text', (c) => c.check(sql`foundation is null or foundation in ('rigid', 'flexible')`))
@@ -96,12 +104,13 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('component', 'text', (c) => c.notNull().defaultTo(''))
 		.addColumn('designation', 'text', (c) => c.notNull().defaultTo(''))
 		.addColumn('rolling_elements', 'integer', (c) => c.check(sql`rolling_elements is null or rolling_elements between 3 and 200`))
-		.addColumn('rolling_element_d_mm', 'double precision', (c) =>
-			c.check(sql`rolling_element_d_mm is null or rolling_element_d_mm > 0`)
-		)
+		.addColumn('rolling_element_d_mm', 'double precision', (c) => c.check(sql`rolling_element_d_mm is null or rolling_element_d_mm > 0`))
 		.addColumn('pitch_d_mm', 'double precision', (c) => c.check(sql`pitch_d_mm is null or pitch_d_mm > 0`))
 		.addColumn('contact_angle_deg', 'double precision', (c) =>
-			c.notNull().defaultTo(0).check(sql`contact_angle_deg >= 0 and contact_angle_deg < 90`)
+			c
+				.notNull()
+				.defaultTo(0)
+				.check(sql`contact_angle_deg >= 0 and contact_angle_deg < 90`)
 		)
 		.addColumn('notes', 'text', (c) => c.notNull().defaultTo(''))
 		.addColumn('archived_at', 'timestamptz')

@@ -13,7 +13,10 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('site_id', 'uuid', (c) => c.notNull())
 		.addColumn('title', 'text', (c) => c.notNull())
 		.addColumn('status', 'text', (c) =>
-			c.notNull().defaultTo('planned').check(sql`status in ('planned', 'walking', 'in_review', 'approved')`)
+			c
+				.notNull()
+				.defaultTo('planned')
+				.check(sql`status in ('planned', 'walking', 'in_review', 'approved')`)
 		)
 		.addColumn('planned_date', 'date')
 		.addColumn('notes', 'text', (c) => c.notNull().defaultTo(''))

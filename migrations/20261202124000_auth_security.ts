@@ -10,7 +10,10 @@ export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.alterTable('mail_outbox')
 		.addColumn('audience', 'text', (c) =>
-			c.notNull().defaultTo('recipient').check(sql`audience in ('recipient', 'organisation')`)
+			c
+				.notNull()
+				.defaultTo('recipient')
+				.check(sql`audience in ('recipient', 'organisation')`)
 		)
 		.addColumn('purpose', 'text', (c) => c.notNull().defaultTo('other'))
 		.addColumn('next_attempt_at', 'timestamptz', (c) => c.notNull().defaultTo(sql`now()`))
@@ -20,8 +23,12 @@ export async function up(db: Kysely<any>): Promise<void> {
 	await sql`update mail_outbox set audience = 'organisation', purpose = 'invitation' where organisation_id is not null`.execute(db);
 	await sql`update mail_outbox set purpose = 'password-reset' where organisation_id is null`.execute(db);
 	await sql`alter table mail_outbox drop constraint if exists mail_outbox_status_check`.execute(db);
-	await sql`alter table mail_outbox add constraint mail_outbox_status_check check (status in ('queued', 'sending', 'sent', 'failed'))`.execute(db);
-	await sql`alter table mail_outbox add constraint mail_outbox_org_audience_check check (audience = 'recipient' or organisation_id is not null)`.execute(db);
+	await sql`alter table mail_outbox add constraint mail_outbox_status_check check (status in ('queued', 'sending', 'sent', 'failed'))`.execute(
+		db
+	);
+	await sql`alter table mail_outbox add constraint mail_outbox_org_audience_check check (audience = 'recipient' or organisation_id is not null)`.execute(
+		db
+	);
 	await db.schema.createIndex('mail_outbox_queue_idx').on('mail_outbox').columns(['status', 'next_attempt_at']).execute();
 	await db.schema.createIndex('mail_outbox_org_idx').on('mail_outbox').columns(['organisation_id', 'created_at']).execute();
 

@@ -43,5 +43,7 @@ export async function down(db: Kysely<any>): Promise<void> {
 	await sql`alter table survey drop constraint if exists survey_status_check`.execute(db);
 	await sql`update survey set status = 'in_review' where status in ('submitted', 'changes_requested')`.execute(db);
 	await sql`update survey set status = 'approved' where status in ('jobs_issued', 'closed')`.execute(db);
-	await sql`alter table survey add constraint survey_status_check check (status in ('planned', 'walking', 'in_review', 'approved'))`.execute(db);
+	await sql`alter table survey add constraint survey_status_check check (status in ('planned', 'walking', 'in_review', 'approved'))`.execute(
+		db
+	);
 }

@@ -17,8 +17,12 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('body', 'text', (c) => c.notNull().check(sql`char_length(body) between 1 and 4000`))
 		.addColumn('created_at', 'timestamptz', (c) => c.notNull().defaultTo(sql`now()`))
 		.addColumn('edited_at', 'timestamptz')
-		.addForeignKeyConstraint('comment_survey_fk', ['organisation_id', 'survey_id'], 'survey', ['organisation_id', 'id'], (fk) => fk.onDelete('cascade'))
-		.addForeignKeyConstraint('comment_board_fk', ['organisation_id', 'board_id'], 'board', ['organisation_id', 'id'], (fk) => fk.onDelete('cascade'))
+		.addForeignKeyConstraint('comment_survey_fk', ['organisation_id', 'survey_id'], 'survey', ['organisation_id', 'id'], (fk) =>
+			fk.onDelete('cascade')
+		)
+		.addForeignKeyConstraint('comment_board_fk', ['organisation_id', 'board_id'], 'board', ['organisation_id', 'id'], (fk) =>
+			fk.onDelete('cascade')
+		)
 		.addCheckConstraint(
 			'comment_target_check',
 			sql`(target_kind = 'survey' and board_id is null and target_id is null)
@@ -38,7 +42,11 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('created_at', 'timestamptz', (c) => c.notNull().defaultTo(sql`now()`))
 		.addPrimaryKeyConstraint('comment_mention_pkey', ['comment_id', 'user_id'])
 		.execute();
-	await db.schema.createIndex('comment_mention_user_idx').on('comment_mention').columns(['organisation_id', 'user_id', 'created_at']).execute();
+	await db.schema
+		.createIndex('comment_mention_user_idx')
+		.on('comment_mention')
+		.columns(['organisation_id', 'user_id', 'created_at'])
+		.execute();
 }
 
 export async function down(db: Kysely<any>): Promise<void> {

@@ -37,5 +37,7 @@ export const handle = sequence(securityHeaders, authenticate);
 
 export const handleError: HandleServerError = ({ error, event, status }) => {
 	if (status !== 404) console.error(`[error] ${event.request.method} ${event.url.pathname}:`, error);
-	return { message: status === 404 ? 'Not found' : 'Something went wrong on the server. Try again; if it keeps happening, tell your admin.' };
+	return {
+		message: status === 404 ? 'Not found' : 'Something went wrong on the server. Try again; if it keeps happening, tell your admin.'
+	};
 };

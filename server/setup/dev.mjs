@@ -13,7 +13,8 @@ const env = {
 	DEV_MAIL_VIEWER: process.env.DEV_MAIL_VIEWER ?? (process.env.SMTP_URL ? '0' : '1')
 };
 const kids = [];
-if (!process.env.SMTP_URL) kids.push(spawnChild('node', ['--import', 'tsx', 'server/setup/mail-server.ts'], { ...env, SMTP_FAKE_PORT: '2526' }));
+if (!process.env.SMTP_URL)
+	kids.push(spawnChild('node', ['--import', 'tsx', 'server/setup/mail-server.ts'], { ...env, SMTP_FAKE_PORT: '2526' }));
 const vite = spawnChild('npx', ['vite', 'dev', '--host', '127.0.0.1', '--port', '5173', '--strictPort'], env);
 kids.push(vite);
 const stop = () => {

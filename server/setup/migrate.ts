@@ -7,8 +7,7 @@ const cmd = process.argv[2] ?? 'latest';
 const url = process.env.DATABASE_URL ?? localDatabaseUrl();
 const { db, close } = createDb(url, 2);
 try {
-	const r =
-		cmd === 'down' ? await migrateDown(db) : cmd === 'empty' ? await migrateToEmpty(db) : await migrateToLatest(db);
+	const r = cmd === 'down' ? await migrateDown(db) : cmd === 'empty' ? await migrateToEmpty(db) : await migrateToLatest(db);
 	for (const m of r.results ?? []) console.log(`${m.direction} ${m.migrationName}: ${m.status}`);
 	if (!r.results?.length) console.log('Nothing to migrate.');
 } catch (e) {

@@ -89,8 +89,16 @@ export function startCluster({ dir, port, dbName, log = console.log }) {
 		writeFileSync(tmpPw, password + '\n', { mode: 0o600 });
 		ownToPostgres(root);
 		pgExec(bin, 'initdb', [
-			'-D', data, '-U', 'spotface', '--auth-local=trust', '--auth-host=scram-sha-256',
-			`--pwfile=${tmpPw}`, '-E', 'UTF8', '--locale=C.UTF-8'
+			'-D',
+			data,
+			'-U',
+			'spotface',
+			'--auth-local=trust',
+			'--auth-host=scram-sha-256',
+			`--pwfile=${tmpPw}`,
+			'-E',
+			'UTF8',
+			'--locale=C.UTF-8'
 		]);
 		execFileSync('rm', ['-f', tmpPw]);
 		const conf = join(data, 'postgresql.conf');

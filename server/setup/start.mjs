@@ -65,7 +65,8 @@ function banner() {
 	log('  tech@harrowgate.example      technician');
 	log('  viewer@harrowgate.example    viewer');
 	if (env.DEV_MAIL_VIEWER === '1') log(`E-mail goes to a local test mail server; read it on this machine at ${env.ORIGIN}/dev/mail`);
-	else if (env.MAIL_CAPTURE_DIR) log(`E-mail goes to a local test mail server, kept in ${env.MAIL_CAPTURE_DIR} (mail viewer off: HOST is not loopback)`);
+	else if (env.MAIL_CAPTURE_DIR)
+		log(`E-mail goes to a local test mail server, kept in ${env.MAIL_CAPTURE_DIR} (mail viewer off: HOST is not loopback)`);
 	log('Press Ctrl-C to stop the app and the database.');
 }
 

@@ -26,7 +26,15 @@ try {
 	step('Linting (Prettier)', 'npx', ['prettier', '--check', '.']);
 	step('Linting (ESLint)', 'npx', ['eslint', '.']);
 	step('Building the app', 'npx', ['vite', 'build', '--logLevel', 'error']);
-	step('Type-checking (svelte-check)', 'npx', ['svelte-check', '--tsconfig', './tsconfig.json', '--threshold', 'error', '--output', 'human']);
+	step('Type-checking (svelte-check)', 'npx', [
+		'svelte-check',
+		'--tsconfig',
+		'./tsconfig.json',
+		'--threshold',
+		'error',
+		'--output',
+		'human'
+	]);
 	log('Running every test: unit, integration, browser');
 	const report = '.data/test-report.json';
 	rmSync(report, { force: true });

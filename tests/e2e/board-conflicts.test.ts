@@ -130,7 +130,11 @@ describe('refused and overwritten work on the live board', () => {
 		await waitLive(tech);
 
 		// Yjs keeps one of the two values; exactly one person is told theirs lost.
-		await expect.poll(async () => (await tech.page.getByTestId('overwrite').count()) + (await engineer.page.getByTestId('overwrite').count()), { timeout: 15_000 }).toBe(1);
+		await expect
+			.poll(async () => (await tech.page.getByTestId('overwrite').count()) + (await engineer.page.getByTestId('overwrite').count()), {
+				timeout: 15_000
+			})
+			.toBe(1);
 		const techLost = (await tech.page.getByTestId('overwrite').count()) === 1;
 		const loser = techLost ? tech : engineer;
 		const other = techLost ? engineer : tech;

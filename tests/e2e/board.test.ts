@@ -61,11 +61,19 @@ describe('the live board in two browsers', () => {
 		await tech.page.goto(boardUrl);
 		await waitLive(engineer);
 		await waitLive(tech);
-		await expect.poll(() => engineer.page.getByTestId('peer').allTextContents(), { timeout: 10_000 }).toEqual([expect.stringContaining('Teo Technician')]);
-		await expect.poll(() => tech.page.getByTestId('peer').allTextContents(), { timeout: 10_000 }).toEqual([expect.stringContaining('Esme Engineer')]);
+		await expect
+			.poll(() => engineer.page.getByTestId('peer').allTextContents(), { timeout: 10_000 })
+			.toEqual([expect.stringContaining('Teo Technician')]);
+		await expect
+			.poll(() => tech.page.getByTestId('peer').allTextContents(), { timeout: 10_000 })
+			.toEqual([expect.stringContaining('Esme Engineer')]);
 		// The photo is drawn under the board (konva exposes its stages on window).
 		await expect
-			.poll(() => engineer.page.evaluate(() => (window as unknown as { Konva: { stages: Array<{ find(s: string): unknown[] }> } }).Konva.stages[0].find('Image').length))
+			.poll(() =>
+				engineer.page.evaluate(
+					() => (window as unknown as { Konva: { stages: Array<{ find(s: string): unknown[] }> } }).Konva.stages[0].find('Image').length
+				)
+			)
 			.toBe(1);
 	});
 
@@ -202,13 +210,17 @@ describe('the live board in two browsers', () => {
 		// The technician sees the engineer's tape measurement in the point's findings.
 		await tech.page.getByRole('tab', { name: /All points/ }).click();
 		await tech.page.getByTestId('finding-row').filter({ hasText: 'P1' }).click();
-		await expect.poll(() => tech.page.getByTestId('distance-source').textContent(), { timeout: 10_000 }).toContain('In use: 60 mm, entered');
+		await expect
+			.poll(() => tech.page.getByTestId('distance-source').textContent(), { timeout: 10_000 })
+			.toContain('In use: 60 mm, entered');
 		// The distance rule passes now, so no "measure the distance" prompt is left.
 		expect(await tech.page.getByTestId('point-editor').textContent()).not.toContain('Measure the distance from the seat');
 		// A wrong value is refused beside the field and not stored.
 		await p.getByTestId('point-distance').fill('-5');
 		await p.getByTestId('point-distance').press('Enter');
-		await expect.poll(() => p.getByTestId('point-editor').getByRole('alert').textContent()).toContain('Distance to bearing must be 0 to 5000 mm');
+		await expect
+			.poll(() => p.getByTestId('point-editor').getByRole('alert').textContent())
+			.toContain('Distance to bearing must be 0 to 5000 mm');
 		await expect.poll(() => p.getByTestId('distance-source').textContent()).toContain('In use: 60 mm, entered');
 	});
 

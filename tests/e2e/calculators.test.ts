@@ -158,7 +158,9 @@ describe('thresholds page in the browser', () => {
 
 		await p.getByLabel('Distance to bearing: fail above').fill('120');
 		await p.getByRole('button', { name: 'Save thresholds' }).click();
-		await expect.poll(async () => (await err.count()) ? await err.textContent() : await p.getByText('Saved.', { exact: true }).count()).toBe(1);
+		await expect
+			.poll(async () => ((await err.count()) ? await err.textContent() : await p.getByText('Saved.', { exact: true }).count()))
+			.toBe(1);
 
 		await p.getByText('Reset to defaults…').click();
 		await p.getByRole('button', { name: 'Yes, reset to defaults' }).click();

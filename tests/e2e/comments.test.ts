@@ -43,8 +43,14 @@ describe('comments on the survey page', () => {
 		const thread = page.getByTestId('comment-thread');
 		await thread.getByLabel('New comment').fill('Who has the permit for the pump pit? ');
 		await thread.getByLabel('Mention a member').selectOption({ label: f.people.technician.name });
-		await expect.poll(() => thread.getByLabel('New comment').inputValue()).toContain(`@[${f.people.technician.name}](${f.people.technician.userId})`);
-		for (const control of [thread.getByRole('button', { name: 'Comment' }), thread.getByLabel('Mention a member'), thread.getByLabel('New comment')]) {
+		await expect
+			.poll(() => thread.getByLabel('New comment').inputValue())
+			.toContain(`@[${f.people.technician.name}](${f.people.technician.userId})`);
+		for (const control of [
+			thread.getByRole('button', { name: 'Comment' }),
+			thread.getByLabel('Mention a member'),
+			thread.getByLabel('New comment')
+		]) {
 			expect((await control.boundingBox())!.height).toBeGreaterThanOrEqual(44);
 		}
 		await thread.getByRole('button', { name: 'Comment' }).click();

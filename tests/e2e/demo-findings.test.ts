@@ -31,7 +31,12 @@ afterAll(async () => {
 describe('findings on the demo board', () => {
 	it('the browser shows the server’s findings, point by point', async () => {
 		const org = await t.db.selectFrom('organisation').select('id').where('name', '=', DEMO_ORG).executeTakeFirstOrThrow();
-		const survey = await t.db.selectFrom('survey').select('id').where('organisation_id', '=', org.id).where('title', '=', DEMO_SURVEY).executeTakeFirstOrThrow();
+		const survey = await t.db
+			.selectFrom('survey')
+			.select('id')
+			.where('organisation_id', '=', org.id)
+			.where('title', '=', DEMO_SURVEY)
+			.executeTakeFirstOrThrow();
 		const [board] = await surveyOpenItems(t.db, org.id, survey.id);
 		expect(board.points).toBeGreaterThan(0);
 		const server = new Map(board.findings.map((f) => [f.label, f.worst]));

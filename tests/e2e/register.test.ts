@@ -78,7 +78,9 @@ describe('register a machine in the browser', () => {
 		await second.getByLabel('Rolling-element diameter d (mm)').fill('20.64');
 		await second.getByLabel('Pitch diameter D (mm)').fill('15');
 		await second.getByRole('button', { name: 'Add bearing' }).click();
-		await expect.poll(() => second.locator('[data-field-error="rollingElementDMm"]').textContent()).toContain('smaller than the pitch diameter');
+		await expect
+			.poll(() => second.locator('[data-field-error="rollingElementDMm"]').textContent())
+			.toContain('smaller than the pitch diameter');
 		await second.getByLabel('Pitch diameter D (mm)').fill('85');
 		await second.getByRole('button', { name: 'Add bearing' }).click();
 		await expect.poll(() => page.getByTestId('bearing-row').count()).toBe(2);

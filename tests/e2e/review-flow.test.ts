@@ -40,7 +40,9 @@ afterAll(async () => {
 
 async function waitLive(b: Browser, readOnly = false) {
 	await expect.poll(() => b.page.getByTestId('connection').getAttribute('data-status'), { timeout: 15_000 }).toBe('connected');
-	await expect.poll(() => b.page.getByTestId('connection').textContent(), { timeout: 15_000 }).toContain(readOnly ? 'read-only' : 'all changes saved');
+	await expect
+		.poll(() => b.page.getByTestId('connection').textContent(), { timeout: 15_000 })
+		.toContain(readOnly ? 'read-only' : 'all changes saved');
 }
 
 async function clickCanvas(b: Browser, fx: number, fy: number) {
@@ -57,7 +59,10 @@ async function openPoint(b: Browser, label: string) {
 
 async function transition(b: Browser, label: string, note?: string) {
 	await b.page.goto(surveyUrl);
-	const form = b.page.getByTestId('survey-actions').locator('form').filter({ has: b.page.getByRole('button', { name: label }) });
+	const form = b.page
+		.getByTestId('survey-actions')
+		.locator('form')
+		.filter({ has: b.page.getByRole('button', { name: label }) });
 	if (note !== undefined) await form.locator('textarea').fill(note);
 	await form.getByRole('button', { name: label }).click();
 }
@@ -89,10 +94,12 @@ describe('review and approval', () => {
 		await expect.poll(() => engineer.page.getByTestId('point-decision-reason').textContent()).toBe('On a sheet cover or guard');
 		await openPoint(engineer, 'P2');
 		await engineer.page.getByTestId('point-review').getByRole('button', { name: 'Approve' }).click();
-		await expect.poll(async () => (await readBoardContent(t.db, boardId)).points.map((p) => [p.label, p.status, p.decisionReason])).toEqual([
-			['P1', 'flagged', 'sheet_cover'],
-			['P2', 'approved', null]
-		]);
+		await expect
+			.poll(async () => (await readBoardContent(t.db, boardId)).points.map((p) => [p.label, p.status, p.decisionReason]))
+			.toEqual([
+				['P1', 'flagged', 'sheet_cover'],
+				['P2', 'approved', null]
+			]);
 		await transition(engineer, 'Request changes', 'Move P1 onto the motor end shield, drive end.');
 		await expect.poll(status).toBe('changes_requested');
 	});
@@ -156,7 +163,11 @@ describe('review and approval', () => {
 		await expect.poll(() => engineer.page.getByTestId('revision-compare').textContent(), { timeout: 15_000 }).toContain('1 moved (P2)');
 		await expect
 			.poll(() =>
-				engineer.page.evaluate(() => (window as unknown as { Konva: { stages: Array<{ find(s: string): unknown[] }> } }).Konva.stages[0].find('.revision-ghost').length)
+				engineer.page.evaluate(
+					() =>
+						(window as unknown as { Konva: { stages: Array<{ find(s: string): unknown[] }> } }).Konva.stages[0].find('.revision-ghost')
+							.length
+				)
 			)
 			.toBe(1);
 		const errors = [...engineer.errors, ...tech.errors].filter((e) => !/favicon/.test(e));

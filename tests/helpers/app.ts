@@ -27,7 +27,12 @@ export function freePort(): Promise<number> {
 	});
 }
 
-export async function startApp(opts: { databaseUrl: string; env?: Record<string, string>; port?: number; dataDir?: string }): Promise<RunningApp> {
+export async function startApp(opts: {
+	databaseUrl: string;
+	env?: Record<string, string>;
+	port?: number;
+	dataDir?: string;
+}): Promise<RunningApp> {
 	const port = opts.port ?? (await freePort());
 	const url = `http://127.0.0.1:${port}`;
 	const dataDir = opts.dataDir ?? mkdtempSync(join(tmpdir(), 'spotface-data-'));

@@ -72,7 +72,9 @@ export async function setUpBoardScenario(t: TestDatabase, appUrl: string): Promi
 	form.set('file', new Blob([new Uint8Array(await scenarioPhoto())], { type: 'image/jpeg' }), 'pump.jpg');
 	form.set('kind', 'photo');
 	form.set('caption', 'Drive end from the walkway');
-	const media = await json<{ id: string; width: number; height: number }>(admin.request(`/api/v1/machines/${machine.id}/media`, { method: 'POST', body: form }));
+	const media = await json<{ id: string; width: number; height: number }>(
+		admin.request(`/api/v1/machines/${machine.id}/media`, { method: 'POST', body: form })
+	);
 	expect([media.width, media.height]).toEqual([1200, 800]);
 
 	// The engineer plans the survey and starts the board through the pages, as on site.

@@ -31,7 +31,10 @@ export interface BoardFixture {
 let counter = 0;
 
 /** An organisation with admin, engineer, technician and viewer, a survey and `boards` boards. */
-export async function createBoardFixture(db: DB, opts: { name?: string; boards?: number; extraTechnicians?: number } = {}): Promise<BoardFixture & { technicians: Person[] }> {
+export async function createBoardFixture(
+	db: DB,
+	opts: { name?: string; boards?: number; extraTechnicians?: number } = {}
+): Promise<BoardFixture & { technicians: Person[] }> {
 	passwordHash ??= hashPassword(PASSWORD);
 	const hash = await passwordHash;
 	const tag = `${Date.now().toString(36)}${(counter++).toString(36)}`;

@@ -11,7 +11,12 @@ export const TEMPLATE_DB = 'spotface_template';
 
 export default async function setup() {
 	if (!process.env.SPOTFACE_TEST_PG_URL) {
-		const c = startCluster({ dir: '.data/pg-test', port: Number(process.env.SPOTFACE_TEST_PG_PORT ?? 54339), dbName: 'spotface_test', log: () => {} });
+		const c = startCluster({
+			dir: '.data/pg-test',
+			port: Number(process.env.SPOTFACE_TEST_PG_PORT ?? 54339),
+			dbName: 'spotface_test',
+			log: () => {}
+		});
 		process.env.SPOTFACE_TEST_PG_URL = c.url;
 	}
 	const adminUrl = withDb(process.env.SPOTFACE_TEST_PG_URL!, 'postgres');
@@ -21,7 +26,11 @@ export default async function setup() {
 	// migrations on disk differ from those applied to it.
 	await client.query('select pg_advisory_lock(727001)');
 	try {
-		const wanted = readdirSync('migrations').filter((f) => /\.(ts|js)$/.test(f)).map((f) => f.replace(/\.(ts|js)$/, '')).sort().join(',');
+		const wanted = readdirSync('migrations')
+			.filter((f) => /\.(ts|js)$/.test(f))
+			.map((f) => f.replace(/\.(ts|js)$/, ''))
+			.sort()
+			.join(',');
 		let applied = '';
 		const exists = await client.query('select 1 from pg_database where datname = $1', [TEMPLATE_DB]);
 		if (exists.rowCount) {

@@ -82,7 +82,9 @@ export function pdfDrawing(title = 'Pump set general arrangement') {
 	return Buffer.from(out, 'latin1');
 }
 
-export const SVG_FILE = Buffer.from('<?xml version="1.0"?><svg xmlns="http://www.w3.org/2000/svg" width="10" height="10"><script>alert(1)</script></svg>');
+export const SVG_FILE = Buffer.from(
+	'<?xml version="1.0"?><svg xmlns="http://www.w3.org/2000/svg" width="10" height="10"><script>alert(1)</script></svg>'
+);
 export const HTML_FILE = Buffer.from('<!DOCTYPE html><html><body><script>alert(1)</script></body></html>');
 
 /** Colour of one pixel of a picture (after decoding), as [r, g, b]. */
@@ -110,8 +112,18 @@ export async function pdfPage(widthPt: number, heightPt: number) {
 	const m = Math.min(widthPt, heightPt) * 0.02;
 	page.drawRectangle({ x: m, y: m, width: widthPt - 2 * m, height: heightPt - 2 * m, borderColor: rgb(0, 0, 0), borderWidth: m / 10 });
 	for (let i = 1; i < 20; i++) {
-		page.drawLine({ start: { x: (widthPt * i) / 20, y: m }, end: { x: (widthPt * i) / 20, y: heightPt - m }, thickness: m / 40, color: rgb(0.6, 0.6, 0.6) });
-		page.drawLine({ start: { x: m, y: (heightPt * i) / 20 }, end: { x: widthPt - m, y: (heightPt * i) / 20 }, thickness: m / 40, color: rgb(0.6, 0.6, 0.6) });
+		page.drawLine({
+			start: { x: (widthPt * i) / 20, y: m },
+			end: { x: (widthPt * i) / 20, y: heightPt - m },
+			thickness: m / 40,
+			color: rgb(0.6, 0.6, 0.6)
+		});
+		page.drawLine({
+			start: { x: m, y: (heightPt * i) / 20 },
+			end: { x: widthPt - m, y: (heightPt * i) / 20 },
+			thickness: m / 40,
+			color: rgb(0.6, 0.6, 0.6)
+		});
 	}
 	page.drawRectangle({ x: widthPt * 0.3, y: heightPt * 0.3, width: widthPt * 0.4, height: heightPt * 0.2, color: rgb(0.1, 0.2, 0.6) });
 	page.drawText('Fan skid general arrangement', { x: m * 2, y: m * 2, size: m, font, color: rgb(0, 0, 0) });

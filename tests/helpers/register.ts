@@ -7,7 +7,12 @@ import { Client } from './http';
 
 export const PW = 'register test pass 1';
 
-export async function makeOrg(t: TestDatabase, appUrl: string, name: string, roles: Role[] = ['admin', 'engineer', 'technician', 'viewer']) {
+export async function makeOrg(
+	t: TestDatabase,
+	appUrl: string,
+	name: string,
+	roles: Role[] = ['admin', 'engineer', 'technician', 'viewer']
+) {
 	const org = await t.db.insertInto('organisation').values({ name }).returning('id').executeTakeFirstOrThrow();
 	const hash = await hashPassword(PW);
 	const clients = {} as Record<Role, Client>;
@@ -15,7 +20,10 @@ export async function makeOrg(t: TestDatabase, appUrl: string, name: string, rol
 	const slug = name.toLowerCase().replace(/[^a-z]+/g, '');
 	for (const role of roles) {
 		const id = `${slug}-${role}`;
-		await t.db.insertInto('app_user').values({ id, email: `${role}@${slug}.test`, name: `${name} ${role}`, password_hash: hash }).execute();
+		await t.db
+			.insertInto('app_user')
+			.values({ id, email: `${role}@${slug}.test`, name: `${name} ${role}`, password_hash: hash })
+			.execute();
 		await t.db.insertInto('member').values({ organisation_id: org.id, user_id: id, role }).execute();
 		const c = new Client(appUrl);
 		await c.signIn(`${role}@${slug}.test`, PW);
@@ -37,7 +45,16 @@ export async function siteWithMachine(c: Client, suffix = '') {
 	const site = await created(c.json('POST', '/api/v1/sites', { name: `Test works${suffix}` }));
 	const area = await created(c.json('POST', '/api/v1/areas', { siteId: site.id, name: 'Pump hall' }));
 	const machine = await created(
-		c.json('POST', '/api/v1/machines', { siteId: site.id, areaId: area.id, name: `Raw water pump${suffix}`, tag: `P-1${suffix}`, kind: 'pump', speedRpm: 1480, powerKw: 45, foundation: 'rigid' })
+		c.json('POST', '/api/v1/machines', {
+			siteId: site.id,
+			areaId: area.id,
+			name: `Raw water pump${suffix}`,
+			tag: `P-1${suffix}`,
+			kind: 'pump',
+			speedRpm: 1480,
+			powerKw: 45,
+			foundation: 'rigid'
+		})
 	);
 	return { site, area, machine };
 }

@@ -12,7 +12,10 @@ let mail: Awaited<ReturnType<typeof startTestMail>>;
 beforeAll(async () => {
 	t = await createTestDatabase();
 	mail = await startTestMail();
-	app = await startApp({ databaseUrl: t.url, env: { ...mail.env, RATE_LIMIT_SIGNIN_FREE_PER_ACCOUNT_ADDRESS: '5', RATE_LIMIT_SIGNUP_PER_ADDRESS: '100' } });
+	app = await startApp({
+		databaseUrl: t.url,
+		env: { ...mail.env, RATE_LIMIT_SIGNIN_FREE_PER_ACCOUNT_ADDRESS: '5', RATE_LIMIT_SIGNUP_PER_ADDRESS: '100' }
+	});
 });
 afterAll(async () => {
 	await app?.stop();
@@ -27,7 +30,12 @@ async function signUp(c: Client, email: string, org = 'Northfield Pumping') {
 describe('sign-up and sign-in', () => {
 	it('sign-up mails a link; the link creates an organisation whose first member is admin, and signs in', async () => {
 		const c = new Client(app.url);
-		const fields = { organisationName: 'Northfield Pumping', name: 'Ada Admin', email: 'ada@northfield.test', password: 'correct horse 42' };
+		const fields = {
+			organisationName: 'Northfield Pumping',
+			name: 'Ada Admin',
+			email: 'ada@northfield.test',
+			password: 'correct horse 42'
+		};
 		const res = await c.form('/sign-up', fields);
 		expect(res.status).toBe(200);
 		expect(await res.text()).toContain('Check your e-mail');
@@ -46,7 +54,11 @@ describe('sign-up and sign-in', () => {
 		expect(c.sessionCookie).toBeTruthy();
 		const me = await (await c.json('GET', '/api/v1/members')).json();
 		expect(me.items).toEqual([expect.objectContaining({ email: 'ada@northfield.test', role: 'admin' })]);
-		const row = await t.db.selectFrom('app_user').select('password_hash').where('email', '=', 'ada@northfield.test').executeTakeFirstOrThrow();
+		const row = await t.db
+			.selectFrom('app_user')
+			.select('password_hash')
+			.where('email', '=', 'ada@northfield.test')
+			.executeTakeFirstOrThrow();
 		expect(row.password_hash.startsWith('$argon2id$')).toBe(true);
 
 		// Single use.
@@ -56,7 +68,12 @@ describe('sign-up and sign-in', () => {
 
 	it('sign-up with a taken e-mail answers as for a new one, creates nothing, and mails the owner', async () => {
 		const c = new Client(app.url);
-		const res = await c.form('/sign-up', { organisationName: 'Second Org', name: 'Someone Else', email: 'ada@northfield.test', password: 'another pass 42' });
+		const res = await c.form('/sign-up', {
+			organisationName: 'Second Org',
+			name: 'Someone Else',
+			email: 'ada@northfield.test',
+			password: 'another pass 42'
+		});
 		expect(res.status).toBe(200);
 		const html = await res.text();
 		expect(html).toContain('Check your e-mail');
@@ -66,14 +83,21 @@ describe('sign-up and sign-in', () => {
 		expect(m.text).toContain('/forgot-password');
 		expect(m.text).not.toMatch(/\/sign-up\/confirm\/|\/reset-password\//);
 		expect(await t.db.selectFrom('organisation').select('id').where('name', '=', 'Second Org').executeTakeFirst()).toBeUndefined();
-		expect(await t.db.selectFrom('sign_up_request').select('id').where('organisation_name', '=', 'Second Org').executeTakeFirst()).toBeUndefined();
+		expect(
+			await t.db.selectFrom('sign_up_request').select('id').where('organisation_name', '=', 'Second Org').executeTakeFirst()
+		).toBeUndefined();
 	});
 
 	it('a sign-up link for an address that has meanwhile got an account creates nothing', async () => {
 		const c = new Client(app.url);
 		await c.form('/sign-up', { organisationName: 'Race Org', name: 'Rae Race', email: 'race@northfield.test', password: 'race pass 123' });
 		const first = await signUpLink(t.db, 'race@northfield.test');
-		await c.form('/sign-up', { organisationName: 'Race Org Two', name: 'Rae Race', email: 'race@northfield.test', password: 'race pass 123' });
+		await c.form('/sign-up', {
+			organisationName: 'Race Org Two',
+			name: 'Rae Race',
+			email: 'race@northfield.test',
+			password: 'race pass 123'
+		});
 		const second = await signUpLink(t.db, 'race@northfield.test', first);
 		expect(second).not.toBe(first);
 		expect((await c.form(first, {})).status).toBe(303);
@@ -115,7 +139,11 @@ describe('sign-up and sign-in', () => {
 	it('an expired session is refused and a page sends you to sign-in', async () => {
 		const c = new Client(app.url);
 		await c.signIn('ada@northfield.test', 'correct horse 42');
-		await t.db.updateTable('user_session').set({ expires_at: new Date(Date.now() - 1000) }).where('id', '=', c.sessionCookie!).execute();
+		await t.db
+			.updateTable('user_session')
+			.set({ expires_at: new Date(Date.now() - 1000) })
+			.where('id', '=', c.sessionCookie!)
+			.execute();
 		const res = await c.get('/');
 		expect(res.status).toBe(303);
 		expect(res.headers.get('location')).toContain('/sign-in');
@@ -181,7 +209,10 @@ describe('password reset', () => {
 		await new Client(app.url).form('/forgot-password', { email });
 		const m = await mail.waitFor(email, /Reset/);
 		const link = new URL(mail.linkIn(m, '/reset-password/'));
-		await t.db.updateTable('password_reset').set({ expires_at: new Date(Date.now() - 1) }).execute();
+		await t.db
+			.updateTable('password_reset')
+			.set({ expires_at: new Date(Date.now() - 1) })
+			.execute();
 		const res = await new Client(app.url).form(link.pathname, { password: 'brand new pass 1', confirm: 'brand new pass 1' });
 		expect(res.status).toBe(410);
 	});

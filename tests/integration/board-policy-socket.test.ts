@@ -10,7 +10,15 @@ import { io as connect, type Socket } from 'socket.io-client';
 import { sql } from 'kysely';
 import { createTestDatabase, type TestDatabase } from '../helpers/db';
 import { startApp, type RunningApp } from '../helpers/app';
-import { createBoardFixture, openProvider, readBoardContent, sessionCookie, storedDoc, waitFor, type BoardFixture } from '../helpers/collab';
+import {
+	createBoardFixture,
+	openProvider,
+	readBoardContent,
+	sessionCookie,
+	storedDoc,
+	waitFor,
+	type BoardFixture
+} from '../helpers/collab';
 import { addPoint, addRoute, decidePoint, deletePoint, maps, readBoard, setEditor, updatePoint } from '../../src/lib/board/model';
 import { EVENT_JOIN, EVENT_MESSAGE, MESSAGE_SYNC, type JoinReply, type MessageAck } from '../../src/lib/board/sync/protocol';
 import type { BoardProvider } from '../../src/lib/board/sync/provider';
@@ -37,7 +45,12 @@ afterAll(async () => {
 
 /** A raw socket.io client on a board: it sends whatever bytes it is given. */
 async function rawClient(role: 'engineer' | 'technician' | 'viewer', boardId: string) {
-	const socket = connect(app.url, { transports: ['websocket'], extraHeaders: { cookie: cookies[role] }, forceNew: true, reconnection: false });
+	const socket = connect(app.url, {
+		transports: ['websocket'],
+		extraHeaders: { cookie: cookies[role] },
+		forceNew: true,
+		reconnection: false
+	});
 	sockets.push(socket);
 	await new Promise<void>((resolve, reject) => {
 		socket.once('connect', () => resolve());
@@ -100,7 +113,13 @@ async function reviewedBoard(boardId: string) {
 			p1 = addPoint(d, { x: 100, y: 100, label: 'P1', flatDiameterMm: 40 });
 			p2 = addPoint(d, { x: 200, y: 100, label: 'P2' });
 			p3 = addPoint(d, { x: 300, y: 100, label: 'P3' });
-			r1 = addRoute(d, { pointId: p1, vertices: [[100, 100], [400, 400]] });
+			r1 = addRoute(d, {
+				pointId: p1,
+				vertices: [
+					[100, 100],
+					[400, 400]
+				]
+			});
 		})
 	).toEqual({ ok: true });
 	const esme = { userId: f.people.engineer.userId, name: f.people.engineer.name };
@@ -118,7 +137,10 @@ describe('the board policy on the server, through the real socket', () => {
 		const rows = await logRows(boardId);
 		refusedWith(await tech.send((d) => deletePoint(d, p1)), /P1 was approved by .* and cannot be deleted; ask .* to reopen it/);
 		refusedWith(await tech.send((d) => updatePoint(d, p1, { flatDiameterMm: 10 })), /P1 was approved .* cannot be changed/);
-		refusedWith(await tech.send((d) => updatePoint(d, p2, { status: 'proposed' })), /P2 was flagged for a look .* can only be reopened by an engineer/);
+		refusedWith(
+			await tech.send((d) => updatePoint(d, p2, { status: 'proposed' })),
+			/P2 was flagged for a look .* can only be reopened by an engineer/
+		);
 		refusedWith(await tech.send((d) => updatePoint(d, p3, { status: 'proposed' })), /P3 was rejected/);
 		refusedWith(await tech.send((d) => updatePoint(d, p2, { status: 'approved' })), /P2 was flagged/);
 		refusedWith(await tech.send((d) => maps(d).routes.delete(r1)), /P1 was approved .* keeps its cable route/);
@@ -226,10 +248,12 @@ describe('a board stored before the board policy', () => {
 		old.transact(() => {
 			const p = new Y.Map<unknown>();
 			maps(old).points.set('legacy-point-1', p);
-			for (const [k, v] of Object.entries({ label: 'P1', x: 120, y: 80, status: 'approved', createdBy: 'u-old', createdAt: 1, notes: '' })) p.set(k, v);
+			for (const [k, v] of Object.entries({ label: 'P1', x: 120, y: 80, status: 'approved', createdBy: 'u-old', createdAt: 1, notes: '' }))
+				p.set(k, v);
 			const q = new Y.Map<unknown>();
 			maps(old).points.set('legacy-point-2', q);
-			for (const [k, v] of Object.entries({ label: 'P2', x: 220, y: 80, status: 'proposed', createdBy: 'u-old', createdAt: 2, notes: '' })) q.set(k, v);
+			for (const [k, v] of Object.entries({ label: 'P2', x: 220, y: 80, status: 'proposed', createdBy: 'u-old', createdAt: 2, notes: '' }))
+				q.set(k, v);
 		});
 		const fixture = await createBoardFixture(t.db, { boards: 1, name: 'Legacy' });
 		const boardId = fixture.boardIds[0];

@@ -12,7 +12,14 @@ import { createTestDatabase, type TestDatabase } from '../helpers/db';
 import { startApp, type RunningApp } from '../helpers/app';
 import { content, createBoardFixture, openProvider, sessionCookie, storedDoc, waitFor, type BoardFixture } from '../helpers/collab';
 import { addPoint, maps, updatePoint } from '../../src/lib/board/model';
-import { EVENT_CLOSED, EVENT_JOIN, EVENT_MESSAGE, MESSAGE_AWARENESS, MESSAGE_SYNC, type JoinReply } from '../../src/lib/board/sync/protocol';
+import {
+	EVENT_CLOSED,
+	EVENT_JOIN,
+	EVENT_MESSAGE,
+	MESSAGE_AWARENESS,
+	MESSAGE_SYNC,
+	type JoinReply
+} from '../../src/lib/board/sync/protocol';
 import type { BoardProvider } from '../../src/lib/board/sync/provider';
 
 const MAX_BYTES = 64 * 1024;

@@ -53,7 +53,9 @@ function addNotes(doc: Y.Doc, bytes: number, label = 'N'): string[] {
 	doc.transact(() => {
 		// A point with 2,000 characters of notes encodes to about 2.4 KB.
 		for (let left = bytes, i = 0; left > 0; left -= 2450, i++) {
-			const notes = randomBytes(1000).toString('hex').slice(0, Math.min(2000, Math.max(1, left - 450)));
+			const notes = randomBytes(1000)
+				.toString('hex')
+				.slice(0, Math.min(2000, Math.max(1, left - 450)));
 			ids.push(addPoint(doc, { x: i, y: i, label: `${label}${i + 1}`.slice(0, 40), notes }));
 		}
 	});
@@ -163,12 +165,19 @@ describe('limits on what a board takes', () => {
 		expect(p.delayed).toBeNull();
 		expect(delayed[0]).toMatch(/kept on this device/);
 		await waitFor(() => isDeepStrictEqual(content(watcher.doc), content(p.doc)), 'the other person sees all of it');
-		const notes = (d: Y.Doc) => readBoard(d).points.map((x) => x.notes).join('').length;
+		const notes = (d: Y.Doc) =>
+			readBoard(d)
+				.points.map((x) => x.notes)
+				.join('').length;
 		const written = notes(p.doc);
 		expect(written).toBeGreaterThan(12 * 15 * 1024);
 		await waitFor(() => notes(watcher.doc) === written, 'and every byte of it');
 		const doc = await storedDoc(t.db, boardId);
-		expect(readBoard(doc).points.map((x) => x.id).sort()).toEqual([...ids].sort());
+		expect(
+			readBoard(doc)
+				.points.map((x) => x.id)
+				.sort()
+		).toEqual([...ids].sort());
 		expect(notes(doc)).toBe(written);
 		expect(refused).toEqual([]); // nothing was rolled back
 	});

@@ -134,7 +134,12 @@ describe('compaction', () => {
 		expect(r!.merged).toBe(rows.length);
 		expect(await logRows(boardId)).toHaveLength(0);
 		const board = await t.db.selectFrom('board').select(['snapshot', 'snapshot_seq']).where('id', '=', boardId).executeTakeFirstOrThrow();
-		expect(board.snapshot_seq).toBe(rows.map((x) => BigInt(x.seq)).reduce((m, x) => (x > m ? x : m)).toString());
+		expect(board.snapshot_seq).toBe(
+			rows
+				.map((x) => BigInt(x.seq))
+				.reduce((m, x) => (x > m ? x : m))
+				.toString()
+		);
 
 		const compacted = new Y.Doc();
 		Y.applyUpdate(compacted, board.snapshot!);

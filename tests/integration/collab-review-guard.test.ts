@@ -31,7 +31,8 @@ function provider(cookie: string) {
 	return p;
 }
 
-const statusOf = (doc: import('yjs').Doc, id: string) => (maps(doc).points.get(id) as import('yjs').Map<unknown> | undefined)?.get('status');
+const statusOf = (doc: import('yjs').Doc, id: string) =>
+	(maps(doc).points.get(id) as import('yjs').Map<unknown> | undefined)?.get('status');
 
 describe('review decisions on the live board', () => {
 	it("a technician's approval of a point is refused and rolled back; the proposal stays", async () => {
@@ -62,7 +63,10 @@ describe('review decisions on the live board', () => {
 
 		// The technician can still make ordinary edits after a refusal.
 		updatePoint(tech.doc, id, { notes: 'seat looks flat' });
-		await waitFor(() => (maps(eng.doc).points.get(id) as import('yjs').Map<unknown>).get('notes') === 'seat looks flat', 'the note reaches the engineer');
+		await waitFor(
+			() => (maps(eng.doc).points.get(id) as import('yjs').Map<unknown>).get('notes') === 'seat looks flat',
+			'the note reaches the engineer'
+		);
 	});
 
 	it('the engineer may approve, flag and reject', async () => {

@@ -148,7 +148,13 @@ describe('permissions', () => {
 		const readonly = next(p, 'readonly');
 		const actor = { userId: g.people.engineer.userId, role: 'engineer' as const };
 		await transitionSurvey(t.db, { organisationId: g.organisationId, surveyId: g.surveyId, name: 'submit', actor });
-		await transitionSurvey(t.db, { organisationId: g.organisationId, surveyId: g.surveyId, name: 'approve', actor, confirmExceptions: true });
+		await transitionSurvey(t.db, {
+			organisationId: g.organisationId,
+			surveyId: g.surveyId,
+			name: 'approve',
+			actor,
+			confirmExceptions: true
+		});
 		const [isReadOnly, why] = (await readonly) as [boolean, string];
 		expect(isReadOnly).toBe(true);
 		expect(why).toMatch(/approved/i);

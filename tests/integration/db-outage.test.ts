@@ -84,7 +84,11 @@ async function settled(what: string, timeoutMs = 30_000) {
 	const stored = readBoard(await storedDoc(h.db, f.boardIds[0]))
 		.points.map((p) => p.label)
 		.sort();
-	expect(stored).toEqual(readBoard(a.doc).points.map((p) => p.label).sort());
+	expect(stored).toEqual(
+		readBoard(a.doc)
+			.points.map((p) => p.label)
+			.sort()
+	);
 }
 
 beforeAll(async () => {
@@ -176,7 +180,11 @@ describe('the database goes away under a running app', () => {
 		providers.push(joiner);
 		const joinerRefusals: string[] = [];
 		joiner.on('refused', (r: string) => joinerRefusals.push(r));
-		await waitFor(() => /handshake failed|join of board \S+ by .* failed/.test(app.output()), 'the join or handshake answered "try again"', 20_000);
+		await waitFor(
+			() => /handshake failed|join of board \S+ by .* failed/.test(app.output()),
+			'the join or handshake answered "try again"',
+			20_000
+		);
 		expect(joiner.status).toBe('connecting');
 
 		cluster = startCluster({ dir: '.data/pg-outage', port, dbName: 'postgres', log: () => {} });

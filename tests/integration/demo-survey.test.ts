@@ -22,7 +22,12 @@ describe('demo survey', () => {
 		await seedDemo(t.db, [], { storage });
 		await seedDemo(t.db, [], { storage });
 		const org = await t.db.selectFrom('organisation').select('id').where('name', '=', DEMO_ORG).executeTakeFirstOrThrow();
-		const surveys = await t.db.selectFrom('survey').select(['id', 'status']).where('organisation_id', '=', org.id).where('title', '=', DEMO_SURVEY).execute();
+		const surveys = await t.db
+			.selectFrom('survey')
+			.select(['id', 'status'])
+			.where('organisation_id', '=', org.id)
+			.where('title', '=', DEMO_SURVEY)
+			.execute();
 		expect(surveys).toHaveLength(1);
 		expect(surveys[0].status).toBe('walking');
 		const boards = await t.db.selectFrom('board').select(['id', 'media_id']).where('survey_id', '=', surveys[0].id).execute();

@@ -31,7 +31,10 @@ beforeAll(async () => {
 		startApp({ databaseUrl: t.url, env: { SMTP_URL: `smtp://127.0.0.1:${port}` } })
 	]);
 	const org = await t.db.insertInto('organisation').values({ name: 'Willow Water' }).returning('id').executeTakeFirstOrThrow();
-	await t.db.insertInto('app_user').values({ id: 'u-willow', email: KNOWN, name: 'Wil Low', password_hash: await hashPassword('willow pass 1') }).execute();
+	await t.db
+		.insertInto('app_user')
+		.values({ id: 'u-willow', email: KNOWN, name: 'Wil Low', password_hash: await hashPassword('willow pass 1') })
+		.execute();
 	await t.db.insertInto('member').values({ organisation_id: org.id, user_id: 'u-willow', role: 'admin' }).execute();
 });
 afterAll(async () => {
@@ -44,11 +47,19 @@ afterAll(async () => {
 
 /** The page with what legitimately differs (the address typed, per-response nonces) blanked. */
 async function normalised(res: Response, email: string) {
-	return (await res.text()).replaceAll(email, '<email>').replace(/nonce="[^"]*"/g, 'nonce=""').replace(/nonce-[A-Za-z0-9+/=]+/g, 'nonce-');
+	return (await res.text())
+		.replaceAll(email, '<email>')
+		.replace(/nonce="[^"]*"/g, 'nonce=""')
+		.replace(/nonce-[A-Za-z0-9+/=]+/g, 'nonce-');
 }
 
 async function outboxRows(to: string) {
-	return t.db.selectFrom('mail_outbox').select(['purpose', 'audience', 'status', 'organisation_id']).where('to_address', '=', to).orderBy('created_at').execute();
+	return t.db
+		.selectFrom('mail_outbox')
+		.select(['purpose', 'audience', 'status', 'organisation_id'])
+		.where('to_address', '=', to)
+		.orderBy('created_at')
+		.execute();
 }
 
 describe('password reset requests', () => {

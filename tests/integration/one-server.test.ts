@@ -54,7 +54,9 @@ describe('one server process', () => {
 		const boardId = f.boardIds[0];
 		// Pages and socket handshakes at the same time: with a second app pool (a second copy of
 		// the server modules) there would be more app connections than the pool size.
-		const pages = Array.from({ length: 12 }, () => fetch(`${app.url}/surveys/${f.surveyId}`, { headers: { cookie } }).then((r) => r.status));
+		const pages = Array.from({ length: 12 }, () =>
+			fetch(`${app.url}/surveys/${f.surveyId}`, { headers: { cookie } }).then((r) => r.status)
+		);
 		for (let i = 0; i < 6; i++) providers.push(openProvider(app.url, boardId, cookie));
 		const [statuses] = await Promise.all([Promise.all(pages), ...providers.map((p) => p.whenSynced())]);
 		expect(statuses.every((s) => s === 200)).toBe(true);

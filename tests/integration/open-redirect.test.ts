@@ -15,7 +15,10 @@ beforeAll(async () => {
 	t = await createTestDatabase();
 	app = await startApp({ databaseUrl: t.url });
 	const org = await t.db.insertInto('organisation').values({ name: 'Hazel Works' }).returning('id').executeTakeFirstOrThrow();
-	await t.db.insertInto('app_user').values({ id: 'u-hazel', email: EMAIL, name: 'Hazel Admin', password_hash: await hashPassword(PW) }).execute();
+	await t.db
+		.insertInto('app_user')
+		.values({ id: 'u-hazel', email: EMAIL, name: 'Hazel Admin', password_hash: await hashPassword(PW) })
+		.execute();
 	await t.db.insertInto('member').values({ organisation_id: org.id, user_id: 'u-hazel', role: 'admin' }).execute();
 });
 afterAll(async () => {

@@ -17,7 +17,10 @@ const VICTIM = 'admin@alder-pumps.test';
 async function makeOrg(name: string, adminEmail: string) {
 	const org = await t.db.insertInto('organisation').values({ name }).returning('id').executeTakeFirstOrThrow();
 	const id = `u-${name.toLowerCase().replace(/\W/g, '')}`;
-	await t.db.insertInto('app_user').values({ id, email: adminEmail, name: `${name} Admin`, password_hash: await hashPassword(PW) }).execute();
+	await t.db
+		.insertInto('app_user')
+		.values({ id, email: adminEmail, name: `${name} Admin`, password_hash: await hashPassword(PW) })
+		.execute();
 	await t.db.insertInto('member').values({ organisation_id: org.id, user_id: id, role: 'admin' }).execute();
 	return org.id;
 }
@@ -48,7 +51,7 @@ afterAll(async () => {
 });
 
 describe('account takeover through the outbox', () => {
-	it('B invites A\'s admin and asks for a reset: B never sees the link and cannot take the account', async () => {
+	it("B invites A's admin and asks for a reset: B never sees the link and cannot take the account", async () => {
 		const b = new Client(app.url);
 		await b.signIn('admin@birch-fans.test', PW);
 
@@ -64,9 +67,9 @@ describe('account takeover through the outbox', () => {
 		const resetLink = mail.linkIn(resetMail, '/reset-password/');
 		const token = resetLink.split('/reset-password/')[1];
 		const resets = async () =>
-			(await t.db.selectFrom('mail_outbox').select(['purpose', 'audience', 'organisation_id']).where('to_address', '=', VICTIM).execute()).filter(
-				(r) => r.purpose === 'password-reset'
-			);
+			(
+				await t.db.selectFrom('mail_outbox').select(['purpose', 'audience', 'organisation_id']).where('to_address', '=', VICTIM).execute()
+			).filter((r) => r.purpose === 'password-reset');
 		await expect.poll(async () => (await resets()).length).toBe(2);
 		expect(await resets()).toEqual([
 			{ purpose: 'password-reset', audience: 'recipient', organisation_id: null },

@@ -57,7 +57,14 @@ describe('sites, areas and supply points', () => {
 	it('supply points default to 24 V DC and belong to an area', async () => {
 		const site = await created(a.admin.json('POST', '/api/v1/sites', { name: 'South works' }));
 		const area = await created(a.admin.json('POST', '/api/v1/areas', { siteId: site.id, name: 'Blower house' }));
-		const sp = await created(a.admin.json('POST', '/api/v1/supply-points', { areaId: area.id, name: 'Junction box JB-3', tag: 'JB-3', locationNote: 'East wall, 1.5 m up' }));
+		const sp = await created(
+			a.admin.json('POST', '/api/v1/supply-points', {
+				areaId: area.id,
+				name: 'Junction box JB-3',
+				tag: 'JB-3',
+				locationNote: 'East wall, 1.5 m up'
+			})
+		);
 		expect(sp).toMatchObject({ voltageV: 24, maxCurrentA: null, areaId: area.id, siteId: site.id });
 		const bad = await a.admin.json('POST', '/api/v1/supply-points', { areaId: area.id, name: 'Mains', voltageV: 230 });
 		expect(bad.status).toBe(400);
@@ -93,12 +100,31 @@ describe('machines and bearings', () => {
 			})
 		);
 		const got = await (await a.viewer.json('GET', `/api/v1/machines/${m.id}`)).json();
-		expect(got).toMatchObject({ name: 'Aeration blower 1', tag: 'B-101', kind: 'blower', speedRpm: 2960, speedMode: 'variable', speedSignal: true, powerKw: 110, foundation: 'flexible', hazardousArea: true, siteName: 'Test works-x', areaName: 'Pump hall' });
+		expect(got).toMatchObject({
+			name: 'Aeration blower 1',
+			tag: 'B-101',
+			kind: 'blower',
+			speedRpm: 2960,
+			speedMode: 'variable',
+			speedSignal: true,
+			powerKw: 110,
+			foundation: 'flexible',
+			hazardousArea: true,
+			siteName: 'Test works-x',
+			areaName: 'Pump hall'
+		});
 	});
 
 	it('refuses bad machine input with one message per field', async () => {
 		const { site } = await siteWithMachine(a.admin, '-v');
-		const r = await a.admin.json('POST', '/api/v1/machines', { siteId: site.id, name: '', kind: 'turbine', speedRpm: -5, powerKw: 'lots', hazardousArea: true });
+		const r = await a.admin.json('POST', '/api/v1/machines', {
+			siteId: site.id,
+			name: '',
+			kind: 'turbine',
+			speedRpm: -5,
+			powerKw: 'lots',
+			hazardousArea: true
+		});
 		expect(r.status).toBe(400);
 		const e = (await r.json()).errors;
 		expect(e.name).toBeDefined();
@@ -119,7 +145,15 @@ describe('machines and bearings', () => {
 
 	it('archived machines leave lists and stay readable by id, with their bearings', async () => {
 		const { machine } = await siteWithMachine(a.admin, '-a');
-		const bearing = await created(a.admin.json('POST', `/api/v1/machines/${machine.id}/bearings`, { position: 'drive_end', component: 'pump', rollingElements: 9, rollingElementDMm: 7.94, pitchDMm: 39.04 }));
+		const bearing = await created(
+			a.admin.json('POST', `/api/v1/machines/${machine.id}/bearings`, {
+				position: 'drive_end',
+				component: 'pump',
+				rollingElements: 9,
+				rollingElementDMm: 7.94,
+				pitchDMm: 39.04
+			})
+		);
 		expect((await a.admin.json('DELETE', `/api/v1/machines/${machine.id}`)).status).toBe(200);
 		const list = await (await a.viewer.json('GET', '/api/v1/machines?q=Raw%20water%20pump-a')).json();
 		expect(list.items).toHaveLength(0);
@@ -137,18 +171,44 @@ describe('machines and bearings', () => {
 
 	it('bearings: geometry is validated, listed drive end first, archived not deleted', async () => {
 		const { machine } = await siteWithMachine(a.admin, '-b');
-		const bad = await a.technician.json('POST', `/api/v1/machines/${machine.id}/bearings`, { position: 'middle', rollingElements: 2.5, rollingElementDMm: 50, pitchDMm: 40, contactAngleDeg: 95 });
+		const bad = await a.technician.json('POST', `/api/v1/machines/${machine.id}/bearings`, {
+			position: 'middle',
+			rollingElements: 2.5,
+			rollingElementDMm: 50,
+			pitchDMm: 40,
+			contactAngleDeg: 95
+		});
 		expect(bad.status).toBe(400);
 		const e = (await bad.json()).errors;
 		expect(e.position[0]).toMatch(/drive end or non-drive end/);
 		expect(e.rollingElements[0]).toMatch(/whole number/);
 		expect(e.contactAngleDeg[0]).toMatch(/less than 90/);
-		const crossing = await a.technician.json('POST', `/api/v1/machines/${machine.id}/bearings`, { position: 'drive_end', rollingElementDMm: 50, pitchDMm: 40 });
+		const crossing = await a.technician.json('POST', `/api/v1/machines/${machine.id}/bearings`, {
+			position: 'drive_end',
+			rollingElementDMm: 50,
+			pitchDMm: 40
+		});
 		expect((await crossing.json()).errors.rollingElementDMm[0]).toMatch(/smaller than the pitch/);
 
-		const nde = await created(a.technician.json('POST', `/api/v1/machines/${machine.id}/bearings`, { position: 'non_drive_end', component: 'motor', rollingElements: '8', rollingElementDMm: '7,94', pitchDMm: '34.5' }));
+		const nde = await created(
+			a.technician.json('POST', `/api/v1/machines/${machine.id}/bearings`, {
+				position: 'non_drive_end',
+				component: 'motor',
+				rollingElements: '8',
+				rollingElementDMm: '7,94',
+				pitchDMm: '34.5'
+			})
+		);
 		expect(nde).toMatchObject({ rollingElements: 8, rollingElementDMm: 7.94, pitchDMm: 34.5, contactAngleDeg: 0 });
-		const de = await created(a.technician.json('POST', `/api/v1/machines/${machine.id}/bearings`, { position: 'drive_end', component: 'motor', rollingElements: 9, rollingElementDMm: 9.53, pitchDMm: 46 }));
+		const de = await created(
+			a.technician.json('POST', `/api/v1/machines/${machine.id}/bearings`, {
+				position: 'drive_end',
+				component: 'motor',
+				rollingElements: 9,
+				rollingElementDMm: 9.53,
+				pitchDMm: 46
+			})
+		);
 		const list = await (await a.viewer.json('GET', `/api/v1/machines/${machine.id}/bearings`)).json();
 		expect(list.items.map((x: { id: string }) => x.id)).toEqual([de.id, nde.id]);
 		// An update is checked against the row as it will be.
@@ -158,7 +218,9 @@ describe('machines and bearings', () => {
 		expect((await a.technician.json('DELETE', `/api/v1/bearings/${de.id}`)).status).toBe(200);
 		const after = await (await a.viewer.json('GET', `/api/v1/machines/${machine.id}/bearings`)).json();
 		expect(after.items.map((x: { id: string }) => x.id)).toEqual([nde.id]);
-		expect(await t.db.selectFrom('bearing').select('archived_at').where('id', '=', de.id).executeTakeFirstOrThrow()).toMatchObject({ archived_at: expect.any(Date) });
+		expect(await t.db.selectFrom('bearing').select('archived_at').where('id', '=', de.id).executeTakeFirstOrThrow()).toMatchObject({
+			archived_at: expect.any(Date)
+		});
 	});
 
 	it('an area of another site is refused', async () => {
@@ -178,7 +240,11 @@ describe('roles', () => {
 		expect((await a.viewer.json('POST', '/api/v1/sites', { name: 'V' })).status).toBe(403);
 		expect((await a.viewer.json('POST', `/api/v1/machines/${machine.id}/bearings`, { position: 'drive_end' })).status).toBe(403);
 
-		const field = await a.technician.json('PATCH', `/api/v1/machines/${machine.id}`, { speedRpm: 1475, notes: 'Nameplate read on the walk', foundation: 'flexible' });
+		const field = await a.technician.json('PATCH', `/api/v1/machines/${machine.id}`, {
+			speedRpm: 1475,
+			notes: 'Nameplate read on the walk',
+			foundation: 'flexible'
+		});
 		expect(field.status).toBe(200);
 		expect(await field.json()).toMatchObject({ speedRpm: 1475, foundation: 'flexible' });
 		const rename = await a.technician.json('PATCH', `/api/v1/machines/${machine.id}`, { name: 'Renamed' });
@@ -196,7 +262,15 @@ describe('tenancy', () => {
 		const { site, area, machine } = await siteWithMachine(a.admin, '-n');
 		const bearing = await created(a.admin.json('POST', `/api/v1/machines/${machine.id}/bearings`, { position: 'drive_end' }));
 		const sp = await created(a.admin.json('POST', '/api/v1/supply-points', { areaId: area.id, name: 'JB-9' }));
-		for (const path of [`/api/v1/machines/${machine.id}`, `/api/v1/machines/${machine.id}/bearings`, `/api/v1/machines/${machine.id}/media`, `/api/v1/bearings/${bearing.id}`, `/api/v1/sites/${site.id}`, `/api/v1/areas/${area.id}`, `/api/v1/supply-points/${sp.id}`]) {
+		for (const path of [
+			`/api/v1/machines/${machine.id}`,
+			`/api/v1/machines/${machine.id}/bearings`,
+			`/api/v1/machines/${machine.id}/media`,
+			`/api/v1/bearings/${bearing.id}`,
+			`/api/v1/sites/${site.id}`,
+			`/api/v1/areas/${area.id}`,
+			`/api/v1/supply-points/${sp.id}`
+		]) {
 			const r = await b.admin.json('GET', path);
 			expect(r.status, path).toBe(404);
 		}
@@ -214,7 +288,17 @@ describe('the machine list', () => {
 		const site = await created(a.admin.json('POST', '/api/v1/sites', { name: 'Big plant' }));
 		const kinds = ['motor', 'pump', 'fan'] as const;
 		for (let i = 1; i <= 25; i++) {
-			await created(a.admin.json('POST', '/api/v1/machines', { siteId: site.id, name: `Unit ${String(i).padStart(2, '0')}`, tag: `BP-${i}`, kind: kinds[i % 3], speedRpm: 500 + i * 100, hazardousArea: i === 7, hazardousZoneNote: i === 7 ? 'Zone 1' : '' }));
+			await created(
+				a.admin.json('POST', '/api/v1/machines', {
+					siteId: site.id,
+					name: `Unit ${String(i).padStart(2, '0')}`,
+					tag: `BP-${i}`,
+					kind: kinds[i % 3],
+					speedRpm: 500 + i * 100,
+					hazardousArea: i === 7,
+					hazardousZoneNote: i === 7 ? 'Zone 1' : ''
+				})
+			);
 		}
 		const p1 = await (await a.viewer.json('GET', `/api/v1/machines?siteId=${site.id}&sort=speed&dir=desc&perPage=10`)).json();
 		expect(p1).toMatchObject({ total: 25, page: 1, perPage: 10, pages: 3 });

@@ -25,9 +25,22 @@ afterAll(async () => {
 });
 
 function send(c: Client, body: string | Uint8Array, query: string) {
-	return c.request(`/api/v1/machines/import?${query}`, { method: 'POST', headers: { 'content-type': 'text/csv', accept: 'application/json' }, body: body as BodyInit });
+	return c.request(`/api/v1/machines/import?${query}`, {
+		method: 'POST',
+		headers: { 'content-type': 'text/csv', accept: 'application/json' },
+		body: body as BodyInit
+	});
 }
-const machineCount = async () => Number((await t.db.selectFrom('machine').select((eb) => eb.fn.countAll<string>().as('n')).where('organisation_id', '=', orgId).executeTakeFirstOrThrow()).n);
+const machineCount = async () =>
+	Number(
+		(
+			await t.db
+				.selectFrom('machine')
+				.select((eb) => eb.fn.countAll<string>().as('n'))
+				.where('organisation_id', '=', orgId)
+				.executeTakeFirstOrThrow()
+		).n
+	);
 
 describe('CSV import', () => {
 	let siteId: string;
@@ -54,7 +67,19 @@ describe('CSV import', () => {
 		]);
 		expect(await machineCount()).toBe(before + 3);
 		const m = await (await viewer.json('GET', '/api/v1/machines?q=DG-M1')).json();
-		expect(m.items[0]).toMatchObject({ name: 'Digester mixer', kind: 'gearbox', speedRpm: 35, speedMode: 'variable', speedSignal: true, powerKw: 15, foundation: null, hazardousArea: true, hazardousZoneNote: 'Zone 1, gas group IIA', areaName: 'Digesters', siteName: 'Elm works' });
+		expect(m.items[0]).toMatchObject({
+			name: 'Digester mixer',
+			kind: 'gearbox',
+			speedRpm: 35,
+			speedMode: 'variable',
+			speedSignal: true,
+			powerKw: 15,
+			foundation: null,
+			hazardousArea: true,
+			hazardousZoneNote: 'Zone 1, gas group IIA',
+			areaName: 'Digesters',
+			siteName: 'Elm works'
+		});
 		const p2 = await (await viewer.json('GET', '/api/v1/machines?q=RW-P2')).json();
 		expect(p2.items[0].notes).toBe('Seal replaced, 2025');
 	});
@@ -77,7 +102,11 @@ describe('CSV import', () => {
 		const errs = (row: number) => body.report.rows.find((x: { row: number }) => x.row === row).errors;
 		expect(errs(2)).toEqual([]);
 		expect(errs(3)).toEqual([{ column: 'name', message: expect.stringMatching(/Enter the machine name/) }]);
-		expect(errs(4).map((e: { column: string }) => e.column).sort()).toEqual(['kind', 'speed_rpm']);
+		expect(
+			errs(4)
+				.map((e: { column: string }) => e.column)
+				.sort()
+		).toEqual(['kind', 'speed_rpm']);
 		expect(errs(5)).toEqual([{ column: 'site', message: expect.stringMatching(/No live site is named "Birch works"/) }]);
 		expect(errs(6)).toEqual([{ column: 'tag', message: expect.stringMatching(/also on row 2/) }]);
 		expect(errs(7)).toEqual([{ column: 'tag', message: expect.stringMatching(/already registered/) }]);
@@ -102,7 +131,8 @@ describe('CSV import', () => {
 	});
 
 	it('reads a spreadsheet export with a BOM, semicolons and decimal commas', async () => {
-		const text = '\uFEFFName;Tag;Type;Speed (rpm);Power (kW);Hazardous area;Zone note\r\nSludge pump 4;SL-P4;pump;1450;7,5;nein;\r\nGrit blower;GR-B1;blower;2950;18,5;no;\r\n';
+		const text =
+			'\uFEFFName;Tag;Type;Speed (rpm);Power (kW);Hazardous area;Zone note\r\nSludge pump 4;SL-P4;pump;1450;7,5;nein;\r\nGrit blower;GR-B1;blower;2950;18,5;no;\r\n';
 		const r = await send(admin, new TextEncoder().encode(text), `siteId=${siteId}&dryRun=true`);
 		const body = await r.json();
 		expect(body.report.delimiter).toBe(';');
@@ -140,9 +170,37 @@ describe('CSV export', () => {
 		expect([...bytes.slice(0, 3)]).toEqual([0xef, 0xbb, 0xbf]);
 		const text = new TextDecoder().decode(bytes);
 		const rows = Papa.parse<string[]>(text.trim()).data;
-		expect(rows[0]).toEqual(['site', 'area', 'name', 'tag', 'kind', 'speed_rpm', 'speed_mode', 'speed_signal', 'power_kw', 'foundation', 'hazardous_area', 'hazardous_zone_note', 'notes']);
+		expect(rows[0]).toEqual([
+			'site',
+			'area',
+			'name',
+			'tag',
+			'kind',
+			'speed_rpm',
+			'speed_mode',
+			'speed_signal',
+			'power_kw',
+			'foundation',
+			'hazardous_area',
+			'hazardous_zone_note',
+			'notes'
+		]);
 		expect(rows.slice(1).map((x) => x[3])).toEqual(['RW-P1', 'RW-P2']);
-		expect(rows[2]).toEqual(['Elm works', 'Intake', 'Raw water pump 2', 'RW-P2', 'pump', '1480', 'constant', 'no', '55', 'rigid', 'no', '', 'Seal replaced, 2025']);
+		expect(rows[2]).toEqual([
+			'Elm works',
+			'Intake',
+			'Raw water pump 2',
+			'RW-P2',
+			'pump',
+			'1480',
+			'constant',
+			'no',
+			'55',
+			'rigid',
+			'no',
+			'',
+			'Seal replaced, 2025'
+		]);
 
 		// Round trip into another site: only the tags clash, which the report says.
 		const again = await send(admin, text, 'dryRun=true');

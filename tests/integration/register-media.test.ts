@@ -9,7 +9,18 @@ import { createTestDatabase, type TestDatabase } from '../helpers/db';
 import { startApp, type RunningApp } from '../helpers/app';
 import { makeOrg, siteWithMachine } from '../helpers/register';
 import type { Client } from '../helpers/http';
-import { HTML_FILE, SVG_FILE, hasGpsIfd, jpeg, pdfDrawing, pixel, png, pngHeaderClaiming, sidewaysJpegWithGps, webp } from '../helpers/images';
+import {
+	HTML_FILE,
+	SVG_FILE,
+	hasGpsIfd,
+	jpeg,
+	pdfDrawing,
+	pixel,
+	png,
+	pngHeaderClaiming,
+	sidewaysJpegWithGps,
+	webp
+} from '../helpers/images';
 
 function upload(c: Client, machineId: string, bytes: Buffer, filename: string, type: string, extra: Record<string, string> = {}) {
 	const form = new FormData();
@@ -47,7 +58,13 @@ describe.each(['disk', 's3'] as const)('media uploads on %s storage', (kind) => 
 		const env: Record<string, string> = { MEDIA_MAX_PIXELS: '10000000' };
 		if (kind === 's3') {
 			s3Dir = mkdtempSync(join(tmpdir(), 'spotface-s3-'));
-			const server = new S3rver({ port: 0, address: '127.0.0.1', silent: true, directory: s3Dir, configureBuckets: [{ name: 'spotface-media' }] });
+			const server = new S3rver({
+				port: 0,
+				address: '127.0.0.1',
+				silent: true,
+				directory: s3Dir,
+				configureBuckets: [{ name: 'spotface-media' }]
+			});
 			const { port } = await server.run();
 			s3 = server;
 			Object.assign(env, {

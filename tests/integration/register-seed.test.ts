@@ -23,7 +23,15 @@ describe('demo register', () => {
 		await seedDemo(t.db, [], { storage });
 		const org = await t.db.selectFrom('organisation').select('id').where('name', '=', DEMO_ORG).executeTakeFirstOrThrow();
 		const count = async (table: 'site' | 'area' | 'supply_point' | 'machine' | 'bearing' | 'media') =>
-			Number((await t.db.selectFrom(table).select((eb) => eb.fn.countAll<string>().as('n')).where('organisation_id', '=', org.id).executeTakeFirstOrThrow()).n);
+			Number(
+				(
+					await t.db
+						.selectFrom(table)
+						.select((eb) => eb.fn.countAll<string>().as('n'))
+						.where('organisation_id', '=', org.id)
+						.executeTakeFirstOrThrow()
+				).n
+			);
 		expect(await count('site')).toBe(1);
 		expect(await count('area')).toBe(2);
 		expect(await count('supply_point')).toBe(4);
@@ -43,11 +51,22 @@ describe('demo register', () => {
 	it('every demo bearing passes the register schema, and the 6205-size row gives the published defect frequencies', async () => {
 		const rows = await t.db.selectFrom('bearing').selectAll().execute();
 		for (const b of rows) {
-			const r = bearingSchema.safeParse({ position: b.position, component: b.component, designation: b.designation, rollingElements: b.rolling_elements, rollingElementDMm: b.rolling_element_d_mm, pitchDMm: b.pitch_d_mm, contactAngleDeg: b.contact_angle_deg });
+			const r = bearingSchema.safeParse({
+				position: b.position,
+				component: b.component,
+				designation: b.designation,
+				rollingElements: b.rolling_elements,
+				rollingElementDMm: b.rolling_element_d_mm,
+				pitchDMm: b.pitch_d_mm,
+				contactAngleDeg: b.contact_angle_deg
+			});
 			expect(r.success, b.designation).toBe(true);
 		}
 		const b6205 = rows.find((b) => b.designation === '6205 size')!;
-		const f = bearingFrequencies({ balls: b6205.rolling_elements!, ballDiameter: b6205.rolling_element_d_mm!, pitchDiameter: b6205.pitch_d_mm! }, 1);
+		const f = bearingFrequencies(
+			{ balls: b6205.rolling_elements!, ballDiameter: b6205.rolling_element_d_mm!, pitchDiameter: b6205.pitch_d_mm! },
+			1
+		);
 		// Case Western Reserve University Bearing Data Center, drive-end bearing 6205 (TRADE.md):
 		// BPFO 3.5848, BPFI 5.4152 × shaft speed.
 		expect(f.bpfo).toBeCloseTo(3.5848, 2);

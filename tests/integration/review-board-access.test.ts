@@ -45,7 +45,12 @@ describe('board access while the survey is submitted', () => {
 		await waitFor(async () => (await storedPoints(boardId)).includes('P1'), 'the walking technician writes');
 
 		const readonly = next(tech, 'readonly');
-		await transitionSurvey(t.db, { organisationId: f.organisationId, surveyId: f.surveyId, name: 'submit', actor: { userId: f.people.technician.userId, role: 'technician' } });
+		await transitionSurvey(t.db, {
+			organisationId: f.organisationId,
+			surveyId: f.surveyId,
+			name: 'submit',
+			actor: { userId: f.people.technician.userId, role: 'technician' }
+		});
 		const [isReadOnly, why] = (await readonly) as [boolean, string];
 		expect(isReadOnly).toBe(true);
 		expect(why).toBe(REASON_SUBMITTED);

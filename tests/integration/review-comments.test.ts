@@ -36,8 +36,22 @@ beforeAll(async () => {
 	await outsider.signIn(other.people.engineer.email, PASSWORD);
 	const doc = new Y.Doc();
 	pointId = addPoint(doc, { x: 100, y: 100, label: 'P1' }, 'seed');
-	routeId = addRoute(doc, { pointId, vertices: [[100, 100], [300, 100]] }, 'seed');
-	await t.db.updateTable('board').set({ snapshot: Buffer.from(Y.encodeStateAsUpdate(doc)) }).where('id', '=', f.boardIds[0]).execute();
+	routeId = addRoute(
+		doc,
+		{
+			pointId,
+			vertices: [
+				[100, 100],
+				[300, 100]
+			]
+		},
+		'seed'
+	);
+	await t.db
+		.updateTable('board')
+		.set({ snapshot: Buffer.from(Y.encodeStateAsUpdate(doc)) })
+		.where('id', '=', f.boardIds[0])
+		.execute();
 });
 afterAll(async () => {
 	await app?.stop();
@@ -46,25 +60,45 @@ afterAll(async () => {
 });
 
 const url = () => `/api/v1/surveys/${f.surveyId}/comments`;
-const mailsTo = (address: string) => readCapturedMail(mail.dir).filter((m) => m.to.map((x) => x.toLowerCase()).includes(address.toLowerCase()));
+const mailsTo = (address: string) =>
+	readCapturedMail(mail.dir).filter((m) => m.to.map((x) => x.toLowerCase()).includes(address.toLowerCase()));
 
 describe('comments', () => {
 	it('a viewer comments on the survey; the thread lists it with the author', async () => {
 		const res = await c.viewer.json('POST', url(), { targetKind: 'survey', body: 'Is the blower hall in scope?' });
 		expect(res.status).toBe(201);
 		const made = await res.json();
-		expect(made).toMatchObject({ targetKind: 'survey', boardId: null, targetId: null, parentId: null, authorId: f.people.viewer.userId, authorName: 'Vic Viewer' });
+		expect(made).toMatchObject({
+			targetKind: 'survey',
+			boardId: null,
+			targetId: null,
+			parentId: null,
+			authorId: f.people.viewer.userId,
+			authorName: 'Vic Viewer'
+		});
 		const list = await (await c.technician.json('GET', `${url()}?targetKind=survey`)).json();
 		expect(list.items.map((x: { body: string }) => x.body)).toEqual(['Is the blower hall in scope?']);
 	});
 
 	it('comments on a board, a point and a route, with replies joining the thread', async () => {
 		const boardId = f.boardIds[0];
-		const onBoard = await (await c.technician.json('POST', url(), { targetKind: 'board', boardId, body: 'Photo taken from the walkway.' })).json();
-		const onPoint = await c.engineer.json('POST', url(), { targetKind: 'point', boardId, targetId: pointId, body: 'Seat looks painted; scrape it.' });
+		const onBoard = await (
+			await c.technician.json('POST', url(), { targetKind: 'board', boardId, body: 'Photo taken from the walkway.' })
+		).json();
+		const onPoint = await c.engineer.json('POST', url(), {
+			targetKind: 'point',
+			boardId,
+			targetId: pointId,
+			body: 'Seat looks painted; scrape it.'
+		});
 		expect(onPoint.status).toBe(201);
 		const point = await onPoint.json();
-		const onRoute = await c.engineer.json('POST', url(), { targetKind: 'route', boardId, targetId: routeId, body: 'Clip it along the frame.' });
+		const onRoute = await c.engineer.json('POST', url(), {
+			targetKind: 'route',
+			boardId,
+			targetId: routeId,
+			body: 'Clip it along the frame.'
+		});
 		expect(onRoute.status).toBe(201);
 		const reply = await c.technician.json('POST', `/api/v1/comments/${point.id}/replies`, { body: 'Done, bare metal now.' });
 		expect(reply.status).toBe(201);
@@ -119,10 +153,14 @@ describe('comments', () => {
 		expect(mailsTo(tech.email)).toHaveLength(1);
 		// The member of another organisation is not told; the author is never told.
 		expect(await t.db.selectFrom('mail_outbox').select('id').where('to_address', '=', outsiderPerson.email).execute()).toHaveLength(0);
-		expect(await t.db.selectFrom('comment_mention').select(['user_id']).where('comment_id', '=', made.id).execute()).toEqual([{ user_id: tech.userId }]);
+		expect(await t.db.selectFrom('comment_mention').select(['user_id']).where('comment_id', '=', made.id).execute()).toEqual([
+			{ user_id: tech.userId }
+		]);
 
 		// Editing the comment does not tell the same person again; a new mention (by e-mail) is told once.
-		const edit = await c.engineer.json('PATCH', `/api/v1/comments/${made.id}`, { body: `${body} cc @${f.people.viewer.email.toUpperCase()}` });
+		const edit = await c.engineer.json('PATCH', `/api/v1/comments/${made.id}`, {
+			body: `${body} cc @${f.people.viewer.email.toUpperCase()}`
+		});
 		expect(edit.status).toBe(200);
 		expect((await edit.json()).editedAt).not.toBeNull();
 		await mail.waitFor(f.people.viewer.email, /mentioned you/);

@@ -29,7 +29,14 @@ beforeAll(async () => {
 	t = await createTestDatabase();
 	await seedDemo(t.db, [], { storage: diskStorage(mkdtempSync(join(tmpdir(), 'spotface-rev-'))) });
 	org = (await t.db.selectFrom('organisation').select('id').where('name', '=', DEMO_ORG).executeTakeFirstOrThrow()).id;
-	surveyId = (await t.db.selectFrom('survey').select('id').where('organisation_id', '=', org).where('title', '=', DEMO_SURVEY).executeTakeFirstOrThrow()).id;
+	surveyId = (
+		await t.db
+			.selectFrom('survey')
+			.select('id')
+			.where('organisation_id', '=', org)
+			.where('title', '=', DEMO_SURVEY)
+			.executeTakeFirstOrThrow()
+	).id;
 	boardId = (await t.db.selectFrom('board').select('id').where('survey_id', '=', surveyId).executeTakeFirstOrThrow()).id;
 	const user = (email: string) => t.db.selectFrom('app_user').select('id').where('email', '=', email).executeTakeFirstOrThrow();
 	engineer = { userId: (await user('engineer@harrowgate.example')).id, role: 'engineer' };
@@ -48,7 +55,10 @@ async function change(edit: (doc: Y.Doc) => void) {
 	const doc = await storedDoc();
 	const sv = Y.encodeStateVector(doc);
 	edit(doc);
-	await t.db.insertInto('board_update').values({ board_id: boardId, update: Buffer.from(Y.encodeStateAsUpdate(doc, sv)), user_id: tech.userId }).execute();
+	await t.db
+		.insertInto('board_update')
+		.values({ board_id: boardId, update: Buffer.from(Y.encodeStateAsUpdate(doc, sv)), user_id: tech.userId })
+		.execute();
 }
 
 describe('approving the demo survey', () => {
@@ -57,16 +67,31 @@ describe('approving the demo survey', () => {
 		const err = await transitionSurvey(t.db, { organisationId: org, surveyId, name: 'approve', actor: engineer }).catch((e) => e);
 		expect(err).toBeInstanceOf(WorkflowError);
 		expect(err.status).toBe(409);
-		expect(err.exceptions.map((x: { label: string; status: string }) => `${x.label}:${x.status}`).sort()).toEqual(['P1:proposed', 'P2:proposed', 'P3:proposed']);
+		expect(err.exceptions.map((x: { label: string; status: string }) => `${x.label}:${x.status}`).sort()).toEqual([
+			'P1:proposed',
+			'P2:proposed',
+			'P3:proposed'
+		]);
 		expect(await t.db.selectFrom('survey_revision').select('id').execute()).toHaveLength(0);
-		expect((await t.db.selectFrom('survey').select('status').where('id', '=', surveyId).executeTakeFirstOrThrow()).status).toBe('submitted');
+		expect((await t.db.selectFrom('survey').select('status').where('id', '=', surveyId).executeTakeFirstOrThrow()).status).toBe(
+			'submitted'
+		);
 
-		const r = await transitionSurvey(t.db, { organisationId: org, surveyId, name: 'approve', actor: engineer, note: 'Approved with P2 to be looked at', confirmExceptions: true });
+		const r = await transitionSurvey(t.db, {
+			organisationId: org,
+			surveyId,
+			name: 'approve',
+			actor: engineer,
+			note: 'Approved with P2 to be looked at',
+			confirmExceptions: true
+		});
 		expect(r.revision?.number).toBe(1);
 		const rev = await getRevision(t.db, org, surveyId, 1);
 		expect(rev!.revision).toMatchObject({ approved_by: engineer.userId, note: 'Approved with P2 to be looked at' });
 		expect(rev!.revision.confirmed_exceptions).toHaveLength(3);
-		expect((await t.db.selectFrom('board').select('frozen_at').where('id', '=', boardId).executeTakeFirstOrThrow()).frozen_at).not.toBeNull();
+		expect(
+			(await t.db.selectFrom('board').select('frozen_at').where('id', '=', boardId).executeTakeFirstOrThrow()).frozen_at
+		).not.toBeNull();
 	});
 
 	it('the revision rows equal the board document field by field', async () => {
@@ -78,12 +103,21 @@ describe('approving the demo survey', () => {
 		const rb = rev.boards[0];
 		expect(rb.board_id).toBe(boardId);
 		expect(rb.state_vector_sha256).toBe(createHash('sha256').update(Y.encodeStateVector(doc)).digest('hex'));
-		expect([rb.scale_ax, rb.scale_ay, rb.scale_bx, rb.scale_by, rb.scale_length_mm]).toEqual([...board.scale!.a, ...board.scale!.b, board.scale!.lengthMm]);
+		expect([rb.scale_ax, rb.scale_ay, rb.scale_bx, rb.scale_by, rb.scale_length_mm]).toEqual([
+			...board.scale!.a,
+			...board.scale!.b,
+			board.scale!.lengthMm
+		]);
 
 		const machineId = (await t.db.selectFrom('board').select('machine_id').where('id', '=', boardId).executeTakeFirstOrThrow()).machine_id;
 		const machine = (await getMachine(t.db, org, machineId))!;
 		const ev = evaluateBoard(board, {
-			machine: { speedRpm: machine.speedRpm as number, speedMode: machine.speedMode, hasSpeedSignal: machine.speedSignal, hazardousArea: machine.hazardousArea },
+			machine: {
+				speedRpm: machine.speedRpm as number,
+				speedMode: machine.speedMode,
+				hasSpeedSignal: machine.speedSignal,
+				hazardousArea: machine.hazardousArea
+			},
 			thresholds: {}
 		});
 
@@ -177,7 +211,9 @@ describe('approving the demo survey', () => {
 	});
 
 	it('reopening unfreezes; the next approval is revision 2; revision 1 stays; comparing gives the known list', async () => {
-		await expect(transitionSurvey(t.db, { organisationId: org, surveyId, name: 'reopen', actor: tech, note: 'x' })).rejects.toMatchObject({ status: 403 });
+		await expect(transitionSurvey(t.db, { organisationId: org, surveyId, name: 'reopen', actor: tech, note: 'x' })).rejects.toMatchObject({
+			status: 403
+		});
 		await transitionSurvey(t.db, { organisationId: org, surveyId, name: 'reopen', actor: engineer, note: 'P2 must move off the fan cowl' });
 		expect((await t.db.selectFrom('board').select('frozen_at').where('id', '=', boardId).executeTakeFirstOrThrow()).frozen_at).toBeNull();
 

@@ -43,7 +43,11 @@ describe('survey transitions over the API', () => {
 					await setStatus(status);
 					await t.db.updateTable('board').set({ frozen_at: null }).where('survey_id', '=', f.surveyId).execute();
 					const before = (await rows()).length;
-					const res = await clients[role].json('POST', `/api/v1/surveys/${f.surveyId}/transitions`, { transition: name, note: `${role} ${name}`, confirmExceptions: true });
+					const res = await clients[role].json('POST', `/api/v1/surveys/${f.surveyId}/transitions`, {
+						transition: name,
+						note: `${role} ${name}`,
+						confirmExceptions: true
+					});
 					const body = await res.json();
 					const tr = TRANSITIONS[name];
 					const roleOk = TRANSITION_ROLES[tr.action].includes(role);
@@ -78,16 +82,25 @@ describe('survey transitions over the API', () => {
 
 	it('a required note, an archived survey, another organisation and bad input are refused clearly', async () => {
 		await setStatus('submitted');
-		let res = await clients.engineer.json('POST', `/api/v1/surveys/${f.surveyId}/transitions`, { transition: 'request_changes', note: '   ' });
+		let res = await clients.engineer.json('POST', `/api/v1/surveys/${f.surveyId}/transitions`, {
+			transition: 'request_changes',
+			note: '   '
+		});
 		expect(res.status).toBe(400);
 		expect((await res.json()).detail).toBe('Say what needs changing.');
 		res = await clients.engineer.json('POST', `/api/v1/surveys/${f.surveyId}/transitions`, { transition: 'teleport' });
 		expect(res.status).toBe(400);
 		expect((await res.json()).errors.transition).toBeTruthy();
-		res = await clients.engineer.json('POST', `/api/v1/surveys/${other.surveyId}/transitions`, { transition: 'approve', confirmExceptions: true });
+		res = await clients.engineer.json('POST', `/api/v1/surveys/${other.surveyId}/transitions`, {
+			transition: 'approve',
+			confirmExceptions: true
+		});
 		expect(res.status).toBe(404);
 		await t.db.updateTable('survey').set({ archived_at: new Date() }).where('id', '=', f.surveyId).execute();
-		res = await clients.engineer.json('POST', `/api/v1/surveys/${f.surveyId}/transitions`, { transition: 'approve', confirmExceptions: true });
+		res = await clients.engineer.json('POST', `/api/v1/surveys/${f.surveyId}/transitions`, {
+			transition: 'approve',
+			confirmExceptions: true
+		});
 		expect(res.status).toBe(409);
 		expect((await res.json()).detail).toMatch(/archived/);
 		await setStatus('submitted');
@@ -100,7 +113,9 @@ describe('survey transitions over the API', () => {
 		expect(techPage).not.toContain('Approve the layout');
 		const res = await clients.technician.form(`/surveys/${f.surveyId}?/transition`, { name: 'submit', note: 'Boards done' });
 		expect(res.status).toBe(200);
-		expect((await t.db.selectFrom('survey').select('status').where('id', '=', f.surveyId).executeTakeFirstOrThrow()).status).toBe('submitted');
+		expect((await t.db.selectFrom('survey').select('status').where('id', '=', f.surveyId).executeTakeFirstOrThrow()).status).toBe(
+			'submitted'
+		);
 		const engPage = await (await clients.engineer.get(`/surveys/${f.surveyId}`)).text();
 		expect(engPage).toContain('Approve the layout');
 		expect(engPage).toContain('Request changes');
@@ -113,14 +128,22 @@ describe('survey transitions over the API', () => {
 		const refused = await clients.technician.form(`/surveys/${f.surveyId}?/transition`, { name: 'approve', confirm: '1' });
 		expect(refused.status).toBe(403);
 		const history = await (await clients.viewer.json('GET', `/api/v1/surveys/${f.surveyId}/transitions`)).json();
-		expect(history.items.at(-1)).toMatchObject({ transition: 'submit', from: 'walking', to: 'submitted', note: 'Boards done', actorRole: 'technician' });
+		expect(history.items.at(-1)).toMatchObject({
+			transition: 'submit',
+			from: 'walking',
+			to: 'submitted',
+			note: 'Boards done',
+			actorRole: 'technician'
+		});
 	});
 
 	it('approved revisions are readable as pages and through the API; other organisations get 404', async () => {
 		// The matrix above approved twice (admin and engineer from submitted): revisions 1 and 2.
 		const list = await (await clients.viewer.json('GET', `/api/v1/surveys/${f.surveyId}/revisions`)).json();
 		expect(list.items.map((r: { number: number }) => r.number)).toEqual([1, 2]);
-		expect(list.items.map((r: { approvedBy: string }) => r.approvedBy).sort()).toEqual([f.people.admin.userId, f.people.engineer.userId].sort());
+		expect(list.items.map((r: { approvedBy: string }) => r.approvedBy).sort()).toEqual(
+			[f.people.admin.userId, f.people.engineer.userId].sort()
+		);
 		const page = await clients.viewer.get(`/surveys/${f.surveyId}/revisions/2`);
 		expect(page.status).toBe(200);
 		expect(await page.text()).toContain('Revision 2');

@@ -23,8 +23,15 @@ async function makeOrg(name: string, roles: Role[]) {
 	const ids: Record<string, string> = {};
 	for (const role of roles) {
 		const id = `${name.slice(0, 3).toLowerCase()}-${role}`;
-		await t.db.insertInto('app_user').values({ id, email: `${role}@${name.toLowerCase()}.test`, name: `${name} ${role}`, password_hash: hash }).execute();
-		const m = await t.db.insertInto('member').values({ organisation_id: org.id, user_id: id, role }).returning('id').executeTakeFirstOrThrow();
+		await t.db
+			.insertInto('app_user')
+			.values({ id, email: `${role}@${name.toLowerCase()}.test`, name: `${name} ${role}`, password_hash: hash })
+			.execute();
+		const m = await t.db
+			.insertInto('member')
+			.values({ organisation_id: org.id, user_id: id, role })
+			.returning('id')
+			.executeTakeFirstOrThrow();
 		ids[role] = m.id;
 	}
 	return { id: org.id, memberIds: ids };
@@ -58,7 +65,11 @@ describe('role matrix through HTTP', () => {
 	// Each guarded request, with the roles that may make it (others get 403).
 	const cases: Array<{ name: string; allowed: Role[]; run: (c: Client) => Promise<Response> }> = [
 		{ name: 'GET /api/v1/members', allowed: ['admin', 'engineer', 'technician', 'viewer'], run: (c) => c.json('GET', '/api/v1/members') },
-		{ name: 'GET /api/v1/organisation', allowed: ['admin', 'engineer', 'technician', 'viewer'], run: (c) => c.json('GET', '/api/v1/organisation') },
+		{
+			name: 'GET /api/v1/organisation',
+			allowed: ['admin', 'engineer', 'technician', 'viewer'],
+			run: (c) => c.json('GET', '/api/v1/organisation')
+		},
 		{ name: 'PATCH /api/v1/organisation', allowed: ['admin'], run: (c) => c.json('PATCH', '/api/v1/organisation', { name: 'Alpha' }) },
 		{ name: 'GET /api/v1/invitations', allowed: ['admin'], run: (c) => c.json('GET', '/api/v1/invitations') },
 		{
@@ -66,7 +77,11 @@ describe('role matrix through HTTP', () => {
 			allowed: ['admin'],
 			run: (c) => c.json('POST', '/api/v1/invitations', { email: `x${Math.random().toString(36).slice(2)}@alpha.test`, role: 'viewer' })
 		},
-		{ name: 'PATCH /api/v1/members/:id (own role kept)', allowed: ['admin'], run: async (c) => c.json('PATCH', `/api/v1/members/${await memberIdOf(c)}`, { role: await roleOf(c) }) }
+		{
+			name: 'PATCH /api/v1/members/:id (own role kept)',
+			allowed: ['admin'],
+			run: async (c) => c.json('PATCH', `/api/v1/members/${await memberIdOf(c)}`, { role: await roleOf(c) })
+		}
 	];
 
 	for (const cs of cases) {
@@ -183,14 +198,20 @@ describe('tenant isolation', () => {
 
 describe('bad input', () => {
 	it('malformed JSON gives 400 problem+json and writes nothing', async () => {
-		const before = await t.db.selectFrom('invitation').select((eb) => eb.fn.countAll<string>().as('n')).executeTakeFirstOrThrow();
+		const before = await t.db
+			.selectFrom('invitation')
+			.select((eb) => eb.fn.countAll<string>().as('n'))
+			.executeTakeFirstOrThrow();
 		const res = await clients.admin.json('POST', '/api/v1/invitations', '{"email": "a@b.test", role', true);
 		expect(res.status).toBe(400);
 		expect(res.headers.get('content-type')).toContain('application/problem+json');
 		const body = await res.json();
 		expect(body.status).toBe(400);
 		expect(body.detail).toMatch(/not valid JSON/);
-		const after = await t.db.selectFrom('invitation').select((eb) => eb.fn.countAll<string>().as('n')).executeTakeFirstOrThrow();
+		const after = await t.db
+			.selectFrom('invitation')
+			.select((eb) => eb.fn.countAll<string>().as('n'))
+			.executeTakeFirstOrThrow();
 		expect(after.n).toBe(before.n);
 	});
 
@@ -216,7 +237,11 @@ describe('bad input', () => {
 	});
 
 	it('a non-JSON content type is refused with 415', async () => {
-		const res = await clients.admin.request('/api/v1/invitations', { method: 'POST', headers: { 'content-type': 'text/plain' }, body: 'hello' });
+		const res = await clients.admin.request('/api/v1/invitations', {
+			method: 'POST',
+			headers: { 'content-type': 'text/plain' },
+			body: 'hello'
+		});
 		expect(res.status).toBe(415);
 	});
 

@@ -13,7 +13,12 @@ beforeAll(async () => {
 	t = await createTestDatabase();
 	app = await startApp({ databaseUrl: t.url });
 	const c = new Client(app.url);
-	await signUpAndConfirm(c, t.db, { organisationName: 'Socket Works', name: 'Sol Admin', email: 'sol@socket.test', password: 'socket pass 123' });
+	await signUpAndConfirm(c, t.db, {
+		organisationName: 'Socket Works',
+		name: 'Sol Admin',
+		email: 'sol@socket.test',
+		password: 'socket pass 123'
+	});
 	cookie = `spotface_session=${c.sessionCookie}`;
 });
 afterAll(async () => {
@@ -46,7 +51,10 @@ describe('socket.io handshake', () => {
 		const bogus = await open({ cookie: 'spotface_session=notarealsession' });
 		expect(bogus.result).toMatch(/unauthorised/);
 		bogus.socket.close();
-		await t.db.updateTable('user_session').set({ expires_at: new Date(Date.now() - 1000) }).execute();
+		await t.db
+			.updateTable('user_session')
+			.set({ expires_at: new Date(Date.now() - 1000) })
+			.execute();
 		const expired = await open({ cookie });
 		expect(expired.result).toMatch(/unauthorised/);
 		expired.socket.close();

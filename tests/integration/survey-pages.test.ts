@@ -51,7 +51,9 @@ const plan = (overrides: Record<string, string | string[]> = {}): Array<[string,
 		technicianId: [a.userIds.technician],
 		...overrides
 	};
-	return Object.entries(base).flatMap(([k, v]) => (Array.isArray(v) ? v.map((x) => [k, x] as [string, string]) : [[k, v] as [string, string]]));
+	return Object.entries(base).flatMap(([k, v]) =>
+		Array.isArray(v) ? v.map((x) => [k, x] as [string, string]) : [[k, v] as [string, string]]
+	);
 };
 
 let surveyId = '';
@@ -89,7 +91,11 @@ describe('planning a survey', () => {
 		res = await post(b.clients.engineer, '/surveys/new', plan({ machineId: [machineB.id] }));
 		expect(res.status).toBe(400);
 		expect(await res.text()).toContain('Choose an engineer of your organisation');
-		res = await post(b.clients.engineer, '/surveys/new', plan({ machineId: [machineB.id], engineerId: b.userIds.engineer, technicianId: [b.userIds.technician] }));
+		res = await post(
+			b.clients.engineer,
+			'/surveys/new',
+			plan({ machineId: [machineB.id], engineerId: b.userIds.engineer, technicianId: [b.userIds.technician] })
+		);
 		expect(res.status).toBe(400);
 		expect(await res.text()).toContain('Choose one of your organisation’s live sites');
 		expect(await t.db.selectFrom('survey').select('id').execute()).toHaveLength(0);
@@ -101,7 +107,12 @@ describe('planning a survey', () => {
 		surveyId = res.headers.get('location')!.split('/').pop()!;
 		const s = await t.db.selectFrom('survey').selectAll().where('id', '=', surveyId).executeTakeFirstOrThrow();
 		expect(s).toMatchObject({ organisation_id: a.id, site_id: siteA.id, title: 'Pump hall walk', status: 'planned' });
-		const people = await t.db.selectFrom('survey_assignee').select(['user_id', 'role']).where('survey_id', '=', surveyId).orderBy('role').execute();
+		const people = await t.db
+			.selectFrom('survey_assignee')
+			.select(['user_id', 'role'])
+			.where('survey_id', '=', surveyId)
+			.orderBy('role')
+			.execute();
 		expect(people).toEqual([
 			{ user_id: a.userIds.engineer, role: 'engineer' },
 			{ user_id: a.userIds.technician, role: 'technician' }
@@ -134,7 +145,10 @@ describe('photos and boards', () => {
 		form.set('kind', 'photo');
 		form.set('open', '1');
 		form.set('file', new Blob([new Uint8Array(await jpeg(640, 480))], { type: 'image/jpeg' }), 'pump.jpg');
-		expect((await a.clients.viewer.request(`/surveys/${surveyId}?/upload`, { method: 'POST', body: form, headers: { accept: 'text/html' } })).status).toBe(403);
+		expect(
+			(await a.clients.viewer.request(`/surveys/${surveyId}?/upload`, { method: 'POST', body: form, headers: { accept: 'text/html' } }))
+				.status
+		).toBe(403);
 		expect((await a.clients.viewer.form(`/surveys/${surveyId}?/board`, { machineId: machineA.id, mediaId: '' })).status).toBe(403);
 	});
 
@@ -143,7 +157,11 @@ describe('photos and boards', () => {
 		empty.set('machineId', machineA.id);
 		empty.set('kind', 'photo');
 		empty.set('file', new Blob([], { type: 'image/jpeg' }), 'nothing.jpg');
-		const none = await a.clients.technician.request(`/surveys/${surveyId}?/upload`, { method: 'POST', body: empty, headers: { accept: 'text/html' } });
+		const none = await a.clients.technician.request(`/surveys/${surveyId}?/upload`, {
+			method: 'POST',
+			body: empty,
+			headers: { accept: 'text/html' }
+		});
 		expect(none.status).toBe(400);
 		expect(await none.text()).toContain('Choose or take a photo first');
 
@@ -153,7 +171,11 @@ describe('photos and boards', () => {
 		form.set('caption', 'Drive end');
 		form.set('open', '1');
 		form.set('file', new Blob([new Uint8Array(await jpeg(640, 480))], { type: 'image/jpeg' }), 'pump.jpg');
-		const res = await a.clients.technician.request(`/surveys/${surveyId}?/upload`, { method: 'POST', body: form, headers: { accept: 'text/html' } });
+		const res = await a.clients.technician.request(`/surveys/${surveyId}?/upload`, {
+			method: 'POST',
+			body: form,
+			headers: { accept: 'text/html' }
+		});
 		expect(res.status).toBe(303);
 		boardPath = res.headers.get('location')!;
 		expect(boardPath).toMatch(new RegExp(`^/surveys/${surveyId}/boards/[0-9a-f-]{36}$`));

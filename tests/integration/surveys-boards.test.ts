@@ -45,9 +45,9 @@ describe('surveys', () => {
 		expect(await surveys.get(t.db, other.organisationId, s!.id)).toBeUndefined();
 		expect(await surveys.create(t.db, f.organisationId, null, { siteId: other.siteId, title: 'x' })).toBeNull();
 		await expect(surveys.setMachines(t.db, f.organisationId, s!.id, [other.machineIds[0]])).rejects.toThrow(/machine of the survey’s site/);
-		await expect(surveys.setAssignees(t.db, f.organisationId, s!.id, [{ userId: other.people.technician.userId, role: 'technician' }])).rejects.toThrow(
-			/Only members/
-		);
+		await expect(
+			surveys.setAssignees(t.db, f.organisationId, s!.id, [{ userId: other.people.technician.userId, role: 'technician' }])
+		).rejects.toThrow(/Only members/);
 	});
 
 	it('an edited plan is saved whole or not at all', async () => {
@@ -76,9 +76,16 @@ describe('surveys', () => {
 		const s = (await surveys.create(t.db, f.organisationId, null, { siteId: f.siteId, title: 'Order' }))!;
 		const eng = { userId: f.people.engineer.userId, role: 'engineer' as const };
 		const tech = { userId: f.people.technician.userId, role: 'technician' as const };
-		const move = (name: Parameters<typeof transitionSurvey>[1]['name'], actor: Parameters<typeof transitionSurvey>[1]['actor'] = eng, note = '', organisationId = f.organisationId) =>
-			transitionSurvey(t.db, { organisationId, surveyId: s.id, name, actor, note });
-		await expect(move('approve')).rejects.toMatchObject({ status: 409, message: expect.stringMatching(/only possible when it is submitted/) });
+		const move = (
+			name: Parameters<typeof transitionSurvey>[1]['name'],
+			actor: Parameters<typeof transitionSurvey>[1]['actor'] = eng,
+			note = '',
+			organisationId = f.organisationId
+		) => transitionSurvey(t.db, { organisationId, surveyId: s.id, name, actor, note });
+		await expect(move('approve')).rejects.toMatchObject({
+			status: 409,
+			message: expect.stringMatching(/only possible when it is submitted/)
+		});
 		expect(await move('start', tech)).toMatchObject({ id: s.id, from: 'planned', to: 'walking' });
 		expect(await move('submit', tech, 'All photos done')).toMatchObject({ to: 'submitted' });
 		await expect(move('request_changes')).rejects.toMatchObject({ status: 400 });
@@ -108,7 +115,9 @@ describe('surveys', () => {
 			expect(rows.every((b) => b.frozen_at !== null && b.survey_status === 'approved')).toBe(true);
 			const s = await surveys.get(t.db, f.organisationId, f.surveyId);
 			expect(s!.approved_by).toBe(f.people.engineer.userId);
-			await expect(transitionSurvey(t.db, { organisationId: f.organisationId, surveyId: f.surveyId, name: 'submit', actor: eng })).rejects.toMatchObject({
+			await expect(
+				transitionSurvey(t.db, { organisationId: f.organisationId, surveyId: f.surveyId, name: 'submit', actor: eng })
+			).rejects.toMatchObject({
 				status: 409
 			});
 			await waitFor(() => f.boardIds.every((id) => heard.includes(id)), 'both boards announced');
@@ -121,9 +130,9 @@ describe('surveys', () => {
 describe('boards', () => {
 	it('are created only for machines of the survey and for media of that machine', async () => {
 		const g = await createBoardFixture(t.db, { name: 'Board Rules Works' });
-		await expect(boards.create(t.db, g.organisationId, { surveyId: g.surveyId, machineId: other.machineIds[0], title: 'x' })).rejects.toThrow(
-			/Add the machine to the survey/
-		);
+		await expect(
+			boards.create(t.db, g.organisationId, { surveyId: g.surveyId, machineId: other.machineIds[0], title: 'x' })
+		).rejects.toThrow(/Add the machine to the survey/);
 		expect(await boards.create(t.db, other.organisationId, { surveyId: g.surveyId, machineId: g.machineIds[0], title: 'x' })).toBeNull();
 		const b = await boards.create(t.db, g.organisationId, { surveyId: g.surveyId, machineId: g.machineIds[0], title: 'Gearbox side' });
 		const got = await boards.get(t.db, g.organisationId, b!.id);
@@ -158,11 +167,19 @@ describe('boards', () => {
 		doc.on('update', (u: Uint8Array) => updates.push(u));
 		points.set('a', 1);
 		points.set('b', 2);
-		for (const u of updates.splice(0)) await t.db.insertInto('board_update').values({ board_id: boardId, update: Buffer.from(u), user_id: null }).execute();
+		for (const u of updates.splice(0))
+			await t.db
+				.insertInto('board_update')
+				.values({ board_id: boardId, update: Buffer.from(u), user_id: null })
+				.execute();
 		await compact(t.db, boardId);
 		points.set('c', 3);
 		points.delete('a');
-		for (const u of updates.splice(0)) await t.db.insertInto('board_update').values({ board_id: boardId, update: Buffer.from(u), user_id: null }).execute();
+		for (const u of updates.splice(0))
+			await t.db
+				.insertInto('board_update')
+				.values({ board_id: boardId, update: Buffer.from(u), user_id: null })
+				.execute();
 
 		const stored = await boards.readContent(t.db, g.organisationId, boardId);
 		const back = new Y.Doc();

@@ -19,7 +19,10 @@ async function makeOrg(name: string, roles: Role[]) {
 	const hash = await hashPassword(PW);
 	for (const role of roles) {
 		const id = `${name.slice(0, 3).toLowerCase()}-${role}`;
-		await t.db.insertInto('app_user').values({ id, email: `${role}@${name.toLowerCase()}.test`, name: `${name} ${role}`, password_hash: hash }).execute();
+		await t.db
+			.insertInto('app_user')
+			.values({ id, email: `${role}@${name.toLowerCase()}.test`, name: `${name} ${role}`, password_hash: hash })
+			.execute();
 		await t.db.insertInto('member').values({ organisation_id: org.id, user_id: id, role }).execute();
 	}
 	return org.id;
@@ -138,7 +141,9 @@ describe('thresholds API', () => {
 			expect(msg).toMatch(/check level .* (must be below|must not be above) the fail level/);
 		}
 		// The fail distance alone was sent, so the error sits on that field.
-		expect((await (await alpha.admin.json('PUT', '/api/v1/settings/thresholds', { distanceFailMm: 75 })).json()).errors.distanceFailMm).toBeDefined();
+		expect(
+			(await (await alpha.admin.json('PUT', '/api/v1/settings/thresholds', { distanceFailMm: 75 })).json()).errors.distanceFailMm
+		).toBeDefined();
 		expect(await stored(orgA)).toEqual({ distanceWarnMm: 50, maxSurfaceTempC: 120 });
 	});
 
@@ -211,7 +216,10 @@ describe('thresholds settings page', () => {
 	});
 
 	it('a bad value shows its error beside the field, keeps what was typed, and stores nothing', async () => {
-		const res = await alpha.engineer.form('/settings/thresholds?/save', fullForm({ distanceFailMm: '-5', minFlatDiameterMm: '42', maxSurfaceTempC: 'abc' }));
+		const res = await alpha.engineer.form(
+			'/settings/thresholds?/save',
+			fullForm({ distanceFailMm: '-5', minFlatDiameterMm: '42', maxSurfaceTempC: 'abc' })
+		);
 		expect(res.status).toBe(400);
 		const html = await res.text();
 		expect(html).toMatch(/data-field-error="distanceFailMm"[^>]*>[\s\S]*?cannot be negative/);

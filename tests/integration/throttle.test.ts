@@ -27,7 +27,10 @@ beforeAll(async () => {
 	t = await createTestDatabase();
 	app = await startApp({ databaseUrl: t.url, env: ENV });
 	const org = await t.db.insertInto('organisation').values({ name: 'Rowan Mill' }).returning('id').executeTakeFirstOrThrow();
-	await t.db.insertInto('app_user').values({ id: 'u-rowan', email: OWNER, name: 'Rowan Owner', password_hash: await hashPassword(PW) }).execute();
+	await t.db
+		.insertInto('app_user')
+		.values({ id: 'u-rowan', email: OWNER, name: 'Rowan Owner', password_hash: await hashPassword(PW) })
+		.execute();
 	await t.db.insertInto('member').values({ organisation_id: org.id, user_id: 'u-rowan', role: 'admin' }).execute();
 });
 afterAll(async () => {
@@ -78,7 +81,7 @@ describe('sign-in slowdown', () => {
 		expect((await signIn(from('198.51.100.21'), OWNER, PW)).status).toBe(303);
 	});
 
-	it('the right password from a fresh address clears only that address\'s count for the account', async () => {
+	it("the right password from a fresh address clears only that address's count for the account", async () => {
 		const c = from('198.51.100.22');
 		for (let i = 0; i < 3; i++) expect((await signIn(c, OWNER, `typo ${i}`)).status).toBe(400);
 		expect((await signIn(c, OWNER, PW)).status).toBe(303);
@@ -90,15 +93,22 @@ describe('sign-in slowdown', () => {
 		// Whoever holds an invitation link must not get an unthrottled password check.
 		const org = await t.db.insertInto('organisation').values({ name: 'Elm Works' }).returning('id').executeTakeFirstOrThrow();
 		const hash = await hashPassword('elm admin pass');
-		await t.db.insertInto('app_user').values([
-			{ id: 'u-elm', email: 'admin@elm-works.test', name: 'Elm Admin', password_hash: hash },
-			{ id: 'u-ash', email: 'ash@ash-yard.test', name: 'Ash Person', password_hash: await hashPassword('ash own pass 1') }
-		]).execute();
+		await t.db
+			.insertInto('app_user')
+			.values([
+				{ id: 'u-elm', email: 'admin@elm-works.test', name: 'Elm Admin', password_hash: hash },
+				{ id: 'u-ash', email: 'ash@ash-yard.test', name: 'Ash Person', password_hash: await hashPassword('ash own pass 1') }
+			])
+			.execute();
 		await t.db.insertInto('member').values({ organisation_id: org.id, user_id: 'u-elm', role: 'admin' }).execute();
 		const elm = from('198.51.100.50');
 		await elm.signIn('admin@elm-works.test', 'elm admin pass');
 		expect((await elm.json('POST', '/api/v1/invitations', { email: 'ash@ash-yard.test', role: 'viewer' })).status).toBe(201);
-		const row = await t.db.selectFrom('mail_outbox').select('body_text').where('to_address', '=', 'ash@ash-yard.test').executeTakeFirstOrThrow();
+		const row = await t.db
+			.selectFrom('mail_outbox')
+			.select('body_text')
+			.where('to_address', '=', 'ash@ash-yard.test')
+			.executeTakeFirstOrThrow();
 		const path = new URL(row.body_text.match(/https?:\/\/\S+\/invite\/\S+/)![0]).pathname;
 
 		const guesser = from('203.0.113.16');
@@ -113,7 +123,8 @@ describe('sign-in slowdown', () => {
 	it('counters survive a restart of the app', async () => {
 		const stranger = from('203.0.113.13');
 		for (let i = 0; i < 2; i++) expect((await signIn(stranger, OWNER, `before restart ${i}`)).status).toBe(400);
-		for (let i = 0; i < 2; i++) expect((await from('203.0.113.14').form('/forgot-password', { email: 'restart@rowan-mill.test' })).status).toBe(200);
+		for (let i = 0; i < 2; i++)
+			expect((await from('203.0.113.14').form('/forgot-password', { email: 'restart@rowan-mill.test' })).status).toBe(200);
 
 		await app.stop();
 		app = await startApp({ databaseUrl: t.url, env: ENV });
@@ -134,13 +145,32 @@ describe('requests that send mail are limited', () => {
 	it('sign-up: per client address and per e-mail address', async () => {
 		const c = from('203.0.113.20');
 		for (let i = 0; i < 3; i++) {
-			const res = await c.form('/sign-up', { organisationName: 'Flood Org', name: 'Flo Od', email: `flood${i}@rowan-mill.test`, password: 'flood pass 123' });
+			const res = await c.form('/sign-up', {
+				organisationName: 'Flood Org',
+				name: 'Flo Od',
+				email: `flood${i}@rowan-mill.test`,
+				password: 'flood pass 123'
+			});
 			expect(res.status).toBe(200);
 		}
-		const over = await c.form('/sign-up', { organisationName: 'Flood Org', name: 'Flo Od', email: 'flood9@rowan-mill.test', password: 'flood pass 123' });
+		const over = await c.form('/sign-up', {
+			organisationName: 'Flood Org',
+			name: 'Flo Od',
+			email: 'flood9@rowan-mill.test',
+			password: 'flood pass 123'
+		});
 		expect(over.status).toBe(429);
 		expect(await over.text()).toContain('Too many sign-ups');
-		expect((await from('203.0.113.21').form('/sign-up', { organisationName: 'Calm Org', name: 'Cal M', email: 'calm@rowan-mill.test', password: 'calm pass 1234' })).status).toBe(200);
+		expect(
+			(
+				await from('203.0.113.21').form('/sign-up', {
+					organisationName: 'Calm Org',
+					name: 'Cal M',
+					email: 'calm@rowan-mill.test',
+					password: 'calm pass 1234'
+				})
+			).status
+		).toBe(200);
 
 		// One mailbox cannot be flooded from many addresses either.
 		const target = { organisationName: 'Target Org', name: 'Tar Get', email: 'target@rowan-mill.test', password: 'target pass 1' };
@@ -159,7 +189,8 @@ describe('requests that send mail are limited', () => {
 		expect(over.status).toBe(429);
 		expect(await over.text()).toContain('Too many reset requests');
 		// Two reset mails were queued for the owner, not three.
-		const resetRows = () => t.db.selectFrom('mail_outbox').select('id').where('to_address', '=', OWNER).where('purpose', '=', 'password-reset').execute();
+		const resetRows = () =>
+			t.db.selectFrom('mail_outbox').select('id').where('to_address', '=', OWNER).where('purpose', '=', 'password-reset').execute();
 		await expect.poll(async () => (await resetRows()).length).toBe(2);
 		await new Promise((r) => setTimeout(r, 300));
 		expect(await resetRows()).toHaveLength(2);
@@ -168,7 +199,8 @@ describe('requests that send mail are limited', () => {
 	it('invitations: per organisation, in the API and the form', async () => {
 		const admin = from('198.51.100.40');
 		await admin.signIn(OWNER, PW);
-		for (let i = 0; i < 3; i++) expect((await admin.json('POST', '/api/v1/invitations', { email: `crew${i}@rowan-mill.test`, role: 'viewer' })).status).toBe(201);
+		for (let i = 0; i < 3; i++)
+			expect((await admin.json('POST', '/api/v1/invitations', { email: `crew${i}@rowan-mill.test`, role: 'viewer' })).status).toBe(201);
 		const over = await admin.json('POST', '/api/v1/invitations', { email: 'crew9@rowan-mill.test', role: 'viewer' });
 		expect(over.status).toBe(429);
 		expect(over.headers.get('content-type')).toContain('application/problem+json');
@@ -176,6 +208,8 @@ describe('requests that send mail are limited', () => {
 		expect((await over.json()).detail).toContain('Too many invitations');
 		const form = await admin.form('/settings/members?/invite', { email: 'crew10@rowan-mill.test', role: 'viewer' });
 		expect(form.status).toBe(429);
-		expect(await t.db.selectFrom('invitation').select('id').where('email', 'in', ['crew9@rowan-mill.test', 'crew10@rowan-mill.test']).execute()).toEqual([]);
+		expect(
+			await t.db.selectFrom('invitation').select('id').where('email', 'in', ['crew9@rowan-mill.test', 'crew10@rowan-mill.test']).execute()
+		).toEqual([]);
 	});
 });

@@ -126,7 +126,9 @@ describe('serving', () => {
 		expect(res.status).toBe(200);
 		expect(res.headers.get('content-type')).toBe('image/jpeg');
 		expect(res.headers.get('x-content-type-options')).toBe('nosniff');
-		expect(res.headers.get('content-disposition')).toBe(`attachment; filename="Pumpe Ubersicht.jpg"; filename*=UTF-8''Pumpe%20%C3%9Cbersicht.jpg`);
+		expect(res.headers.get('content-disposition')).toBe(
+			`attachment; filename="Pumpe Ubersicht.jpg"; filename*=UTF-8''Pumpe%20%C3%9Cbersicht.jpg`
+		);
 		expect(res.headers.get('content-security-policy')).toContain('sandbox');
 		expect(Buffer.from(await res.arrayBuffer()).equals(bytes)).toBe(true);
 		const etag = res.headers.get('etag')!;
@@ -163,7 +165,16 @@ describe('serving', () => {
 });
 
 // Ids that are not uuids, and values that are not even strings.
-const GARBAGE = ['', 'x', '------------------------------------', "1' OR '1'='1", '3f2504e0-4f89-41d3-9a0c-0305e82c330g', `${'a'.repeat(5000)}`, '\u0000', '{}'];
+const GARBAGE = [
+	'',
+	'x',
+	'------------------------------------',
+	"1' OR '1'='1",
+	'3f2504e0-4f89-41d3-9a0c-0305e82c330g',
+	`${'a'.repeat(5000)}`,
+	'\u0000',
+	'{}'
+];
 const JSON_GARBAGE: unknown[] = [...GARBAGE, 12, -1, true, null, [], {}, ['3f2504e0-4f89-41d3-9a0c-0305e82c3301']];
 
 function expectClientError(res: Response, what: string) {
@@ -176,7 +187,13 @@ describe('garbage ids never end in a 500', () => {
 		const member = await t.db.selectFrom('member').select('id').where('user_id', '=', a.userIds.viewer).executeTakeFirstOrThrow();
 		for (const id of GARBAGE) {
 			for (const [action, fields] of [
-				['role', [['id', id], ['role', 'engineer']]],
+				[
+					'role',
+					[
+						['id', id],
+						['role', 'engineer']
+					]
+				],
 				['revoke', [['id', id]]],
 				['remove', [['id', id]]]
 			] as const) {
@@ -188,11 +205,21 @@ describe('garbage ids never end in a 500', () => {
 		// A missing id is the same 400.
 		expect((await post(a.clients.admin, '/settings/members?/role', [['role', 'engineer']])).status).toBe(400);
 		// The real id still works, and nobody's role changed on the way.
-		const ok = await post(a.clients.admin, '/settings/members?/role', [['id', member.id], ['role', 'viewer']]);
+		const ok = await post(a.clients.admin, '/settings/members?/role', [
+			['id', member.id],
+			['role', 'viewer']
+		]);
 		expect(ok.status).toBe(200);
 		// Another organisation's well-formed id is "no such member".
 		const theirs = await t.db.selectFrom('member').select('id').where('user_id', '=', b.userIds.admin).executeTakeFirstOrThrow();
-		expect((await post(a.clients.admin, '/settings/members?/role', [['id', theirs.id], ['role', 'viewer']])).status).toBe(404);
+		expect(
+			(
+				await post(a.clients.admin, '/settings/members?/role', [
+					['id', theirs.id],
+					['role', 'viewer']
+				])
+			).status
+		).toBe(404);
 	});
 
 	it('site page: archiving an area or a supply point with a garbage id is a 400', async () => {
@@ -202,9 +229,17 @@ describe('garbage ids never end in a 500', () => {
 				expect(res.status, `${action} ${JSON.stringify(id.slice(0, 40))}`).toBe(400);
 				expect(await res.text()).toMatch(/could not be identified: reload the page/);
 			}
-			expectClientError(await post(a.clients.admin, `/register/sites/${site.id}?/addSupplyPoint`, [['areaId', id], ['name', 'JB-1']]), `addSupplyPoint ${id.slice(0, 40)}`);
+			expectClientError(
+				await post(a.clients.admin, `/register/sites/${site.id}?/addSupplyPoint`, [
+					['areaId', id],
+					['name', 'JB-1']
+				]),
+				`addSupplyPoint ${id.slice(0, 40)}`
+			);
 		}
-		expect((await t.db.selectFrom('area').select('archived_at').where('id', '=', area.id).executeTakeFirstOrThrow()).archived_at).toBeNull();
+		expect(
+			(await t.db.selectFrom('area').select('archived_at').where('id', '=', area.id).executeTakeFirstOrThrow()).archived_at
+		).toBeNull();
 	});
 
 	it('CSV import: a garbage site is a 400 on preview and on import', async () => {
@@ -213,7 +248,11 @@ describe('garbage ids never end in a 500', () => {
 			const preview = await postMultipart(a.clients.admin, '/register/import?/preview', { siteId: id, file: csv });
 			expect(preview.status, `preview ${id.slice(0, 40)}`).toBe(400);
 			expect(await preview.text()).toMatch(/Choose the site from the list/);
-			const run = await post(a.clients.admin, '/register/import?/import', [['siteId', id], ['text', 'name,kind\nFan 9,fan\n'], ['mode', 'all']]);
+			const run = await post(a.clients.admin, '/register/import?/import', [
+				['siteId', id],
+				['text', 'name,kind\nFan 9,fan\n'],
+				['mode', 'all']
+			]);
 			expect(run.status, `import ${id.slice(0, 40)}`).toBe(400);
 		}
 		expect(await t.db.selectFrom('machine').select('id').where('name', '=', 'Fan 9').execute()).toEqual([]);
@@ -222,17 +261,85 @@ describe('garbage ids never end in a 500', () => {
 	it('machine, survey and board forms refuse garbage ids with a 4xx', async () => {
 		for (const id of GARBAGE) {
 			const label = JSON.stringify(id.slice(0, 40));
-			expectClientError(await post(a.clients.admin, '/register/machines/new', [['siteId', id], ['name', 'Fan 7'], ['kind', 'fan']]), `new machine site ${label}`);
-			expectClientError(await post(a.clients.admin, '/register/machines/new', [['siteId', site.id], ['areaId', id || 'x'], ['name', 'Fan 7'], ['kind', 'fan']]), `new machine area ${label}`);
-			expectClientError(await post(a.clients.admin, `/register/machines/${machine.id}?/save`, [['siteId', id], ['name', 'Raw water pump'], ['kind', 'pump']]), `save machine ${label}`);
-			expectClientError(await post(a.clients.engineer, '/surveys/new', [['siteId', id], ['title', 'Walk'], ['machineId', machine.id]]), `new survey site ${label}`);
-			expectClientError(await post(a.clients.engineer, '/surveys/new', [['siteId', site.id], ['title', 'Walk'], ['machineId', id || 'x']]), `new survey machine ${label}`);
-			expectClientError(await post(a.clients.engineer, '/surveys/new', [['siteId', site.id], ['title', 'Walk'], ['engineerId', id || 'x'], ['technicianId', id || 'x']]), `new survey people ${label}`);
-			expectClientError(await post(a.clients.engineer, `/surveys/${surveyId}?/plan`, [['title', 'Walk'], ['machineId', id || 'x'], ['technicianId', id || 'x']]), `plan ${label}`);
-			expectClientError(await post(a.clients.engineer, `/surveys/${surveyId}?/board`, [['machineId', id], ['mediaId', '']]), `board machine ${label}`);
-			expectClientError(await post(a.clients.engineer, `/surveys/${surveyId}?/board`, [['machineId', machine.id], ['mediaId', id || 'x']]), `board media ${label}`);
 			expectClientError(
-				await postMultipart(a.clients.technician, `/surveys/${surveyId}?/upload`, { machineId: id, kind: 'photo', caption: '', file: new File([new Uint8Array(await jpeg(50, 50))], 'p.jpg') }),
+				await post(a.clients.admin, '/register/machines/new', [
+					['siteId', id],
+					['name', 'Fan 7'],
+					['kind', 'fan']
+				]),
+				`new machine site ${label}`
+			);
+			expectClientError(
+				await post(a.clients.admin, '/register/machines/new', [
+					['siteId', site.id],
+					['areaId', id || 'x'],
+					['name', 'Fan 7'],
+					['kind', 'fan']
+				]),
+				`new machine area ${label}`
+			);
+			expectClientError(
+				await post(a.clients.admin, `/register/machines/${machine.id}?/save`, [
+					['siteId', id],
+					['name', 'Raw water pump'],
+					['kind', 'pump']
+				]),
+				`save machine ${label}`
+			);
+			expectClientError(
+				await post(a.clients.engineer, '/surveys/new', [
+					['siteId', id],
+					['title', 'Walk'],
+					['machineId', machine.id]
+				]),
+				`new survey site ${label}`
+			);
+			expectClientError(
+				await post(a.clients.engineer, '/surveys/new', [
+					['siteId', site.id],
+					['title', 'Walk'],
+					['machineId', id || 'x']
+				]),
+				`new survey machine ${label}`
+			);
+			expectClientError(
+				await post(a.clients.engineer, '/surveys/new', [
+					['siteId', site.id],
+					['title', 'Walk'],
+					['engineerId', id || 'x'],
+					['technicianId', id || 'x']
+				]),
+				`new survey people ${label}`
+			);
+			expectClientError(
+				await post(a.clients.engineer, `/surveys/${surveyId}?/plan`, [
+					['title', 'Walk'],
+					['machineId', id || 'x'],
+					['technicianId', id || 'x']
+				]),
+				`plan ${label}`
+			);
+			expectClientError(
+				await post(a.clients.engineer, `/surveys/${surveyId}?/board`, [
+					['machineId', id],
+					['mediaId', '']
+				]),
+				`board machine ${label}`
+			);
+			expectClientError(
+				await post(a.clients.engineer, `/surveys/${surveyId}?/board`, [
+					['machineId', machine.id],
+					['mediaId', id || 'x']
+				]),
+				`board media ${label}`
+			);
+			expectClientError(
+				await postMultipart(a.clients.technician, `/surveys/${surveyId}?/upload`, {
+					machineId: id,
+					kind: 'photo',
+					caption: '',
+					file: new File([new Uint8Array(await jpeg(50, 50))], 'p.jpg')
+				}),
 				`survey upload ${label}`
 			);
 		}
@@ -262,17 +369,33 @@ describe('garbage ids never end in a 500', () => {
 			const q = encodeURIComponent(id);
 			const label = JSON.stringify(id.slice(0, 40));
 			// List filters ignore a malformed id (the list is shown unfiltered).
-			for (const path of [`/api/v1/machines?siteId=${q}&areaId=${q}`, `/api/v1/areas?siteId=${q}`, `/api/v1/supply-points?siteId=${q}&areaId=${q}`, `/api/v1/machines/export?siteId=${q}`, `/api/v1/machines/${machine.id}/media?kind=${q}`]) {
+			for (const path of [
+				`/api/v1/machines?siteId=${q}&areaId=${q}`,
+				`/api/v1/areas?siteId=${q}`,
+				`/api/v1/supply-points?siteId=${q}&areaId=${q}`,
+				`/api/v1/machines/export?siteId=${q}`,
+				`/api/v1/machines/${machine.id}/media?kind=${q}`
+			]) {
 				expect((await a.clients.admin.json('GET', path)).status, `${path.slice(0, 60)} ${label}`).toBe(200);
 			}
 			expect((await a.clients.admin.get(`/register/machines?siteId=${q}&areaId=${q}`)).status, `machines page ${label}`).toBe(200);
 			if (id) {
-				const imp = await a.clients.admin.request(`/api/v1/machines/import?siteId=${q}`, { method: 'POST', headers: { 'content-type': 'text/csv' }, body: 'name,kind\nFan 9,fan\n' });
+				const imp = await a.clients.admin.request(`/api/v1/machines/import?siteId=${q}`, {
+					method: 'POST',
+					headers: { 'content-type': 'text/csv' },
+					body: 'name,kind\nFan 9,fan\n'
+				});
 				expect(imp.status, `import ${label}`).toBe(400);
 			}
 			// Path ids of the API that are not matched by the uuid matcher are checked in the handler.
 			if (id && !id.includes('\u0000')) {
-				for (const path of [`/api/v1/members/${q}`, `/api/v1/invitations/${q}`, `/api/v1/media/${q}`, `/api/v1/machines/${q}`, `/api/v1/sites/${q}`]) {
+				for (const path of [
+					`/api/v1/members/${q}`,
+					`/api/v1/invitations/${q}`,
+					`/api/v1/media/${q}`,
+					`/api/v1/machines/${q}`,
+					`/api/v1/sites/${q}`
+				]) {
 					expectClientError(await a.clients.admin.json('GET', path), `GET ${path.slice(0, 60)}`);
 					expectClientError(await a.clients.admin.json('PATCH', path, { role: 'viewer', name: 'x' }), `PATCH ${path.slice(0, 60)}`);
 				}

@@ -22,13 +22,15 @@ export function hitTest(board: BoardSnapshot, selection: readonly string[], at: 
 	for (const r of board.routes) {
 		if (!sel.has(r.id)) continue;
 		for (let i = r.vertices.length - 1; i >= 1; i--) {
-			if (Math.hypot(r.vertices[i][0] - at[0], r.vertices[i][1] - at[1]) <= radius) return { kind: 'vertex', owner: 'route', id: r.id, index: i };
+			if (Math.hypot(r.vertices[i][0] - at[0], r.vertices[i][1] - at[1]) <= radius)
+				return { kind: 'vertex', owner: 'route', id: r.id, index: i };
 		}
 	}
 	for (const z of board.zones) {
 		if (!sel.has(z.id)) continue;
 		for (let i = 0; i < z.polygon.length; i++) {
-			if (Math.hypot(z.polygon[i][0] - at[0], z.polygon[i][1] - at[1]) <= radius) return { kind: 'vertex', owner: 'zone', id: z.id, index: i };
+			if (Math.hypot(z.polygon[i][0] - at[0], z.polygon[i][1] - at[1]) <= radius)
+				return { kind: 'vertex', owner: 'zone', id: z.id, index: i };
 		}
 	}
 	let best: { id: string; d: number } | null = null;

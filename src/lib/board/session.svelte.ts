@@ -155,7 +155,12 @@ export class LiveBoard {
 			this.#cleanup.push(
 				provider.on('refused', (reason, detail) => {
 					const d = detail as { kind?: Refusal['kind']; local?: boolean } | undefined;
-					this.#refusal = { reason: typeof reason === 'string' ? reason : 'refused by the server', kind: d?.kind ?? 'join', at: Date.now(), local: !!d?.local };
+					this.#refusal = {
+						reason: typeof reason === 'string' ? reason : 'refused by the server',
+						kind: d?.kind ?? 'join',
+						at: Date.now(),
+						local: !!d?.local
+					};
 					read();
 				})
 			);
@@ -266,7 +271,9 @@ export class LiveBoard {
 		if (entry.kind === 'point') {
 			const patch: Record<string, unknown> = {};
 			for (const k of PROPOSAL_FIELDS) {
-				const r = (pointPatchSchema.shape as Record<string, { safeParse(v: unknown): { success: boolean; data?: unknown } }>)[k].safeParse(entry.item[k]);
+				const r = (pointPatchSchema.shape as Record<string, { safeParse(v: unknown): { success: boolean; data?: unknown } }>)[k].safeParse(
+					entry.item[k]
+				);
 				if (entry.item[k] !== undefined && r.success) patch[k] = r.data;
 			}
 			const x = Number(entry.item.x);

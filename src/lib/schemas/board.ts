@@ -121,7 +121,15 @@ export function isReviewDecision(status: unknown): status is ReviewDecision {
 }
 
 /** Why an engineer flags or rejects a point: the trade's usual reasons, then free text. */
-export const DECISION_REASONS = ['sheet_cover', 'too_far', 'no_flat_seat', 'wall_too_thin', 'cable_crosses_rotating', 'supply_too_far', 'other'] as const;
+export const DECISION_REASONS = [
+	'sheet_cover',
+	'too_far',
+	'no_flat_seat',
+	'wall_too_thin',
+	'cable_crosses_rotating',
+	'supply_too_far',
+	'other'
+] as const;
 export type DecisionReason = (typeof DECISION_REASONS)[number];
 export const DECISION_REASON_LABEL: Record<DecisionReason, string> = {
 	sheet_cover: 'On a sheet cover or guard',

@@ -13,7 +13,12 @@ const body = z
 	.max(COMMENT_MAX, `A comment has at most ${COMMENT_MAX} characters.`);
 
 /** Yjs item ids of points and routes (what newId() makes), or anything of that shape. */
-const itemId = z.string().trim().min(1, 'Which point or route?').max(100).regex(/^[A-Za-z0-9_-]+$/, 'Not a point or route id.');
+const itemId = z
+	.string()
+	.trim()
+	.min(1, 'Which point or route?')
+	.max(100)
+	.regex(/^[A-Za-z0-9_-]+$/, 'Not a point or route id.');
 
 export const commentCreateSchema = z
 	.object({

@@ -27,21 +27,27 @@ const blankToNull = (v: unknown) => (v === undefined || (typeof v === 'string' &
 
 /** Text that may be left empty (stored as ''). */
 const text = (max: number, label: string) =>
-	z.preprocess((v) => (v == null ? '' : v), z.string({ error: `${label} must be text.` }).trim().max(max, `${label} has at most ${max} characters.`));
+	z.preprocess(
+		(v) => (v == null ? '' : v),
+		z
+			.string({ error: `${label} must be text.` })
+			.trim()
+			.max(max, `${label} has at most ${max} characters.`)
+	);
 
 /** Text that may be left empty (stored as null). */
 const optionalText = (max: number, label: string) =>
 	z.preprocess(
 		blankToNull,
-		z.string({ error: `${label} must be text.` }).trim().max(max, `${label} has at most ${max} characters.`).nullable()
+		z
+			.string({ error: `${label} must be text.` })
+			.trim()
+			.max(max, `${label} has at most ${max} characters.`)
+			.nullable()
 	);
 
 const requiredText = (max: number, message: string, label: string) =>
-	z
-		.string({ error: message })
-		.trim()
-		.min(1, message)
-		.max(max, `${label} has at most ${max} characters.`);
+	z.string({ error: message }).trim().min(1, message).max(max, `${label} has at most ${max} characters.`);
 
 /** A number typed in a form or a spreadsheet: accepts "7.5", "7,5" and " 1 500 ". */
 function toNumber(v: unknown): unknown {
@@ -79,12 +85,22 @@ export const flag = (label: string) =>
 		z.boolean({ error: `${label}: answer yes or no.` })
 	);
 
-const uuid = (message: string) => z.string({ error: message }).trim().regex(/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i, message);
+const uuid = (message: string) =>
+	z
+		.string({ error: message })
+		.trim()
+		.regex(/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i, message);
 const optionalUuid = (message: string) => z.preprocess(blankToNull, uuid(message).nullable());
 
 function lowerEnum<T extends readonly [string, ...string[]]>(values: T, message: string) {
 	return z.preprocess(
-		(v) => (typeof v === 'string' ? v.trim().toLowerCase().replace(/[\s-]+/g, '_') : v),
+		(v) =>
+			typeof v === 'string'
+				? v
+						.trim()
+						.toLowerCase()
+						.replace(/[\s-]+/g, '_')
+				: v,
 		z.enum(values, { error: message })
 	);
 }
@@ -111,7 +127,13 @@ export const supplyPointSchema = z.object({
 	name: requiredText(120, 'Enter a name for the supply point, e.g. "Junction box JB-3".', 'A name'),
 	tag: optionalText(60, 'The tag'),
 	// 24 V DC nominal (IEC 61131-2); other DC voltages up to 60 V are allowed for odd installations.
-	voltageV: z.preprocess((v) => (blankToNull(v) === null ? 24 : toNumber(v)), z.number({ error: 'The voltage must be a number in V.' }).gt(0, 'The voltage must be more than 0 V.').max(60, 'Sensor supplies here are low-voltage DC: at most 60 V.')),
+	voltageV: z.preprocess(
+		(v) => (blankToNull(v) === null ? 24 : toNumber(v)),
+		z
+			.number({ error: 'The voltage must be a number in V.' })
+			.gt(0, 'The voltage must be more than 0 V.')
+			.max(60, 'Sensor supplies here are low-voltage DC: at most 60 V.')
+	),
 	maxCurrentA: optionalNumber('The maximum current', { gt: 0, max: 100, unit: 'A' }),
 	locationNote: text(500, 'The location note')
 });
@@ -129,7 +151,14 @@ export const machineFieldSchema = z.object({
 	speedSignal: flag('Speed signal available'),
 	powerKw: optionalNumber('The power', { gt: 0, max: 100000, unit: 'kW' }),
 	foundation: z.preprocess(
-		(v) => (v === undefined ? null : typeof v === 'string' ? (v.trim() === '' || v.trim().toLowerCase() === 'unknown' ? null : v.trim().toLowerCase()) : v),
+		(v) =>
+			v === undefined
+				? null
+				: typeof v === 'string'
+					? v.trim() === '' || v.trim().toLowerCase() === 'unknown'
+						? null
+						: v.trim().toLowerCase()
+					: v,
 		z.enum(FOUNDATIONS, { error: 'Choose a rigid or a flexible foundation (or leave it unknown).' }).nullable()
 	),
 	hazardousArea: flag('Hazardous area'),
@@ -188,7 +217,10 @@ const bearingBase = z.object({
 	pitchDMm: optionalNumber('The pitch diameter', { gt: 0, max: 5000, unit: 'mm' }),
 	contactAngleDeg: z.preprocess(
 		(v) => (blankToNull(v) === null ? 0 : toNumber(v)),
-		z.number({ error: 'The contact angle must be a number in degrees.' }).min(0, 'The contact angle must be at least 0°.').lt(90, 'The contact angle must be less than 90°.')
+		z
+			.number({ error: 'The contact angle must be a number in degrees.' })
+			.min(0, 'The contact angle must be at least 0°.')
+			.lt(90, 'The contact angle must be less than 90°.')
 	),
 	notes: text(2000, 'The notes')
 });

@@ -13,7 +13,11 @@ export const transitionSchema = z
 	.strict();
 export type TransitionRequest = z.infer<typeof transitionSchema>;
 
-const revisionNumber = z.coerce.number({ error: 'A revision number.' }).int('A revision number.').min(1, 'Revisions start at 1.').max(1_000_000);
+const revisionNumber = z.coerce
+	.number({ error: 'A revision number.' })
+	.int('A revision number.')
+	.min(1, 'Revisions start at 1.')
+	.max(1_000_000);
 
 export const compareQuerySchema = z.object({ from: revisionNumber, to: revisionNumber });
 export const revisionNumberSchema = revisionNumber;

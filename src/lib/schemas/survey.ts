@@ -6,7 +6,10 @@ const uuid = (message: string) => z.uuid({ error: message });
 const isoDate = z
 	.string()
 	.trim()
-	.refine((s) => s === '' || (/^\d{4}-\d{2}-\d{2}$/.test(s) && !Number.isNaN(Date.parse(`${s}T00:00:00Z`))), 'Enter the date as YYYY-MM-DD.')
+	.refine(
+		(s) => s === '' || (/^\d{4}-\d{2}-\d{2}$/.test(s) && !Number.isNaN(Date.parse(`${s}T00:00:00Z`))),
+		'Enter the date as YYYY-MM-DD.'
+	)
 	.transform((s) => (s === '' ? null : s));
 
 export const surveyPlanSchema = z.object({

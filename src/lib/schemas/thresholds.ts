@@ -2,20 +2,11 @@
 // cross-field rules come from the trade module's thresholdsSchema; this adds the checks the
 // settings page needs on top (a strict check-below-fail ordering, plain words for negatives)
 // and turns form strings into numbers without losing what was typed.
-import {
-	DEFAULT_THRESHOLDS,
-	THRESHOLD_KEYS,
-	THRESHOLD_META,
-	thresholdsSchema,
-	type ThresholdKey,
-	type Thresholds
-} from '../trade';
+import { DEFAULT_THRESHOLDS, THRESHOLD_KEYS, THRESHOLD_META, thresholdsSchema, type ThresholdKey, type Thresholds } from '../trade';
 
 export type ThresholdErrors = Partial<Record<ThresholdKey | '_', string[]>>;
 
-export type ThresholdValidation =
-	| { ok: true; overrides: Partial<Thresholds> }
-	| { ok: false; errors: ThresholdErrors };
+export type ThresholdValidation = { ok: true; overrides: Partial<Thresholds> } | { ok: false; errors: ThresholdErrors };
 
 const META = new Map(THRESHOLD_META.map((m) => [m.key, m]));
 

@@ -50,7 +50,11 @@ export function context(): Context {
 	ctx = {
 		handle,
 		auth: createAuth(handle.pool, { secure: origin.startsWith('https:') }),
-		mailer: createMailer({ db: handle.db, smtpUrl: setting('SMTP_URL') || undefined, from: setting('MAIL_FROM') || 'Spotface <no-reply@spotface.local>' }),
+		mailer: createMailer({
+			db: handle.db,
+			smtpUrl: setting('SMTP_URL') || undefined,
+			from: setting('MAIL_FROM') || 'Spotface <no-reply@spotface.local>'
+		}),
 		config: {
 			origin,
 			databaseUrl: url,

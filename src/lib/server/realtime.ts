@@ -57,10 +57,16 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions = {
 		}
 	});
 	// The writer (group commit, at most a few connections at a time) and one LISTEN connection.
-	const collabPool = guardPool(new pg.Pool({ connectionString: config.databaseUrl, max: 4, application_name: COLLAB_POOL_NAME }), 'live-board pool');
+	const collabPool = guardPool(
+		new pg.Pool({ connectionString: config.databaseUrl, max: 4, application_name: COLLAB_POOL_NAME }),
+		'live-board pool'
+	);
 	let adapterPool: pg.Pool | null = null;
 	if (collabOptions.cluster) {
-		adapterPool = guardPool(new pg.Pool({ connectionString: config.databaseUrl, max: 4, application_name: ADAPTER_POOL_NAME }), 'adapter pool');
+		adapterPool = guardPool(
+			new pg.Pool({ connectionString: config.databaseUrl, max: 4, application_name: ADAPTER_POOL_NAME }),
+			'adapter pool'
+		);
 		io.adapter(
 			// Its LISTEN client gets an error listener and is given back broken when lost (see adapter-pool.ts).
 			createAdapter(guardedAdapterPool(adapterPool), {
@@ -84,7 +90,9 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions = {
 		} catch (err) {
 			console.error('[realtime] handshake failed:', (err as Error).message);
 			// The session could not be checked (the database is away): not a refusal, try again.
-			const e = new Error(isConnectionError(err) ? 'the server cannot check the session just now' : 'unauthorised') as Error & { data?: HandshakeErrorData };
+			const e = new Error(isConnectionError(err) ? 'the server cannot check the session just now' : 'unauthorised') as Error & {
+				data?: HandshakeErrorData;
+			};
 			e.data = { retry: true };
 			next(e);
 		}

@@ -10,7 +10,8 @@ export const REASON_JOBS = 'The installation jobs for this layout have been issu
 export const REASON_CLOSED = 'This survey is closed; the board is read-only.';
 export const REASON_FROZEN = 'This board is frozen; it is read-only.';
 export const REASON_ARCHIVED = 'This survey is archived; the board is read-only.';
-export const REASON_SUBMITTED = 'The survey is submitted for review; the board is read-only for technicians until the engineer requests changes.';
+export const REASON_SUBMITTED =
+	'The survey is submitted for review; the board is read-only for technicians until the engineer requests changes.';
 export const REASON_SESSION = 'Your session has ended. Sign in again to keep editing.';
 
 /** Roles that may write boards at all (the guard's 'board.write'). */
@@ -65,7 +66,8 @@ export function writablePairs(): string[] {
 	const out: string[] = [];
 	for (const role of ROLES) {
 		for (const surveyStatus of SURVEY_STATUSES) {
-			if (!boardAccess({ role, surveyStatus, frozen: false, archived: false, sessionLive: true }).readOnly) out.push(`${role}:${surveyStatus}`);
+			if (!boardAccess({ role, surveyStatus, frozen: false, archived: false, sessionLive: true }).readOnly)
+				out.push(`${role}:${surveyStatus}`);
 		}
 	}
 	return out;

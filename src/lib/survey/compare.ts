@@ -99,7 +99,9 @@ function same(a: unknown, b: unknown): boolean {
 
 function fieldChanges(before: Record<string, unknown>, after: Record<string, unknown>, ignored: Set<string>): FieldChange[] {
 	const keys = [...new Set([...Object.keys(before), ...Object.keys(after)])].filter((k) => !ignored.has(k)).sort();
-	return keys.filter((k) => !same(before[k], after[k])).map((field) => ({ field, before: before[field] ?? null, after: after[field] ?? null }));
+	return keys
+		.filter((k) => !same(before[k], after[k]))
+		.map((field) => ({ field, before: before[field] ?? null, after: after[field] ?? null }));
 }
 
 /** How far a polyline moved: the largest distance from a vertex of one to the nearest vertex of the other. */
@@ -123,7 +125,12 @@ export function compareRevisions(from: ComparableRevision, to: ComparableRevisio
 	const labelIn = (rev: ComparableRevision) => new Map(rev.points.map((p) => [key(p.boardId, p.id), p.label]));
 	const labelsFrom = labelIn(from);
 	const labelsTo = labelIn(to);
-	const pointRef = (p: ComparablePoint): ItemRef => ({ boardId: p.boardId, boardTitle: titles.get(p.boardId) ?? '', id: p.id, label: p.label });
+	const pointRef = (p: ComparablePoint): ItemRef => ({
+		boardId: p.boardId,
+		boardTitle: titles.get(p.boardId) ?? '',
+		id: p.id,
+		label: p.label
+	});
 	const routeRef = (r: ComparableRoute): ItemRef => ({
 		boardId: r.boardId,
 		boardTitle: titles.get(r.boardId) ?? '',

@@ -38,7 +38,8 @@ export function isSurveyStatus(v: unknown): v is SurveyStatus {
 }
 
 /** Guard actions that move a survey (names as in src/lib/server/auth/guard.ts PERMISSIONS). */
-export type TransitionAction = 'survey.start' | 'survey.plan' | 'survey.submit' | 'survey.review' | 'survey.reopen' | 'job.issue' | 'survey.close';
+export type TransitionAction =
+	'survey.start' | 'survey.plan' | 'survey.submit' | 'survey.review' | 'survey.reopen' | 'job.issue' | 'survey.close';
 
 export const TRANSITION_NAMES = ['start', 'replan', 'submit', 'request_changes', 'approve', 'reopen', 'issue_jobs', 'close'] as const;
 export type TransitionName = (typeof TRANSITION_NAMES)[number];
@@ -57,8 +58,24 @@ export interface Transition {
 }
 
 export const TRANSITIONS: Record<TransitionName, Transition> = {
-	start: { name: 'start', from: ['planned'], to: 'walking', action: 'survey.start', note: 'none', label: 'Start the site walk', done: 'started the site walk' },
-	replan: { name: 'replan', from: ['walking'], to: 'planned', action: 'survey.plan', note: 'optional', label: 'Back to planning', done: 'moved it back to planning' },
+	start: {
+		name: 'start',
+		from: ['planned'],
+		to: 'walking',
+		action: 'survey.start',
+		note: 'none',
+		label: 'Start the site walk',
+		done: 'started the site walk'
+	},
+	replan: {
+		name: 'replan',
+		from: ['walking'],
+		to: 'planned',
+		action: 'survey.plan',
+		note: 'optional',
+		label: 'Back to planning',
+		done: 'moved it back to planning'
+	},
 	submit: {
 		name: 'submit',
 		from: ['walking', 'changes_requested'],
@@ -77,10 +94,42 @@ export const TRANSITIONS: Record<TransitionName, Transition> = {
 		label: 'Request changes',
 		done: 'requested changes'
 	},
-	approve: { name: 'approve', from: ['submitted'], to: 'approved', action: 'survey.review', note: 'optional', label: 'Approve the layout', done: 'approved the layout' },
-	reopen: { name: 'reopen', from: ['approved'], to: 'walking', action: 'survey.reopen', note: 'required', label: 'Reopen for changes', done: 'reopened it' },
-	issue_jobs: { name: 'issue_jobs', from: ['approved'], to: 'jobs_issued', action: 'job.issue', note: 'optional', label: 'Issue the jobs', done: 'issued the jobs' },
-	close: { name: 'close', from: ['jobs_issued'], to: 'closed', action: 'survey.close', note: 'optional', label: 'Close the survey', done: 'closed it' }
+	approve: {
+		name: 'approve',
+		from: ['submitted'],
+		to: 'approved',
+		action: 'survey.review',
+		note: 'optional',
+		label: 'Approve the layout',
+		done: 'approved the layout'
+	},
+	reopen: {
+		name: 'reopen',
+		from: ['approved'],
+		to: 'walking',
+		action: 'survey.reopen',
+		note: 'required',
+		label: 'Reopen for changes',
+		done: 'reopened it'
+	},
+	issue_jobs: {
+		name: 'issue_jobs',
+		from: ['approved'],
+		to: 'jobs_issued',
+		action: 'job.issue',
+		note: 'optional',
+		label: 'Issue the jobs',
+		done: 'issued the jobs'
+	},
+	close: {
+		name: 'close',
+		from: ['jobs_issued'],
+		to: 'closed',
+		action: 'survey.close',
+		note: 'optional',
+		label: 'Close the survey',
+		done: 'closed it'
+	}
 };
 
 export function isTransitionName(v: unknown): v is TransitionName {
@@ -104,7 +153,10 @@ export type TransitionCheck = { ok: true; transition: Transition } | { ok: false
  * May `role` take transition `name` on a survey that is `status` (and archived or not)?
  * The answer the server gives, and the one the page uses to show buttons.
  */
-export function checkTransition(name: TransitionName, ctx: { role: Role | null | undefined; status: SurveyStatus; archived: boolean; note?: string }): TransitionCheck {
+export function checkTransition(
+	name: TransitionName,
+	ctx: { role: Role | null | undefined; status: SurveyStatus; archived: boolean; note?: string }
+): TransitionCheck {
 	const t = TRANSITIONS[name];
 	if (!ctx.role || !TRANSITION_ROLES[t.action].includes(ctx.role)) {
 		return { ok: false, status: 403, message: `Your role cannot ${t.label.toLowerCase()}.` };

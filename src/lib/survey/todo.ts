@@ -23,7 +23,8 @@ export interface TodoInput {
 	changesReason: string | null;
 }
 
-const list = (labels: string[]) => (labels.length <= 6 ? labels.join(', ') : `${labels.slice(0, 6).join(', ')} and ${labels.length - 6} more`);
+const list = (labels: string[]) =>
+	labels.length <= 6 ? labels.join(', ') : `${labels.slice(0, 6).join(', ')} and ${labels.length - 6} more`;
 
 function fieldLines(boards: OpenBoard[]): string[] {
 	const out: string[] = [];
@@ -48,7 +49,8 @@ function reviewLines(boards: OpenBoard[]): string[] {
 		const undecided = b.undecided.map((p) => p.label);
 		if (undecided.length) out.push(`${b.title}: decide on ${list(undecided)}.`);
 		const rejected = b.rejected.map((p) => p.label);
-		if (rejected.length) out.push(`${b.title}: ${list(rejected)} ${rejected.length === 1 ? 'is' : 'are'} rejected; approving needs a confirmation.`);
+		if (rejected.length)
+			out.push(`${b.title}: ${list(rejected)} ${rejected.length === 1 ? 'is' : 'are'} rejected; approving needs a confirmation.`);
 	}
 	return out;
 }
@@ -65,7 +67,11 @@ export function surveyTodo(i: TodoInput): string[] {
 			const work = [...i.planLines, ...fieldLines(i.boards)];
 			const lines = i.status === 'changes_requested' && i.changesReason ? [`Changes requested: ${i.changesReason}`, ...work] : work;
 			if (i.role === 'viewer') return lines.length ? lines : ['The technicians are walking the site.'];
-			lines.push(work.length ? 'Submit for review when these are done (or explain in the note why not).' : 'Every board is ready: submit the survey for review.');
+			lines.push(
+				work.length
+					? 'Submit for review when these are done (or explain in the note why not).'
+					: 'Every board is ready: submit the survey for review.'
+			);
 			return lines;
 		}
 		case 'submitted':
@@ -76,7 +82,9 @@ export function surveyTodo(i: TodoInput): string[] {
 			}
 			return ['Submitted for review: waiting for the engineer. The boards are read-only until changes are requested.'];
 		case 'approved':
-			return engineer ? ['Approved: issue the installation jobs, or reopen the survey to change the layout.'] : ['Approved: the layout is settled and read-only.'];
+			return engineer
+				? ['Approved: issue the installation jobs, or reopen the survey to change the layout.']
+				: ['Approved: the layout is settled and read-only.'];
 		case 'jobs_issued':
 			return ['The installation jobs are issued.'];
 		case 'closed':

@@ -29,20 +29,14 @@ export function assertBearingGeometry(g: unknown, field = 'bearing'): BearingGeo
 	const d = requireNumber(`${field}.ballDiameter`, o.ballDiameter, { min: 0, exclusiveMin: true });
 	const D = requireNumber(`${field}.pitchDiameter`, o.pitchDiameter, { min: 0, exclusiveMin: true });
 	if (d >= D) {
-		throw new RangeError(
-			`${field}.ballDiameter (${d}) must be smaller than ${field}.pitchDiameter (${D}); check the units match`
-		);
+		throw new RangeError(`${field}.ballDiameter (${d}) must be smaller than ${field}.pitchDiameter (${D}); check the units match`);
 	}
 	// Rolling elements must fit round the pitch circle: n·d < π·D.
 	if (balls * d >= Math.PI * D) {
-		throw new RangeError(
-			`${field}.balls (${balls}) of diameter ${d} do not fit on a pitch diameter of ${D}`
-		);
+		throw new RangeError(`${field}.balls (${balls}) of diameter ${d} do not fit on a pitch diameter of ${D}`);
 	}
 	const phi =
-		o.contactAngleDeg === undefined
-			? 0
-			: requireNumber(`${field}.contactAngleDeg`, o.contactAngleDeg, { min: 0, max: 90, unit: '°' });
+		o.contactAngleDeg === undefined ? 0 : requireNumber(`${field}.contactAngleDeg`, o.contactAngleDeg, { min: 0, max: 90, unit: '°' });
 	return { balls, ballDiameter: d, pitchDiameter: D, contactAngleDeg: phi };
 }
 

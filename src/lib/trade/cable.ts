@@ -40,13 +40,9 @@ export function conductorResistancePerMetre(
 	requireNumber('crossSectionMm2', crossSectionMm2, { min: 0, exclusiveMin: true, unit: 'mm²' });
 	requireOneOf('conductorClass', conductorClass, [1, 2, 5] as const);
 	requireNumber('temperatureC', temperatureC, { min: -60, max: 200, unit: '°C' });
-	const row = IEC60228_MAX_RESISTANCE.find(
-		(r) => Math.abs(r.crossSectionMm2 - crossSectionMm2) < SIZE_TOLERANCE
-	);
+	const row = IEC60228_MAX_RESISTANCE.find((r) => Math.abs(r.crossSectionMm2 - crossSectionMm2) < SIZE_TOLERANCE);
 	if (!row) {
-		throw new RangeError(
-			`crossSectionMm2 must be a standard size (${CONDUCTOR_SIZES_MM2.join(', ')} mm²), got ${crossSectionMm2} mm²`
-		);
+		throw new RangeError(`crossSectionMm2 must be a standard size (${CONDUCTOR_SIZES_MM2.join(', ')} mm²), got ${crossSectionMm2} mm²`);
 	}
 	const r20 = (conductorClass === 5 ? row.class5OhmPerKm : row.class12OhmPerKm) / 1000;
 	// R_t = R_20·(1 + α·(t − 20)), IEC 60028.

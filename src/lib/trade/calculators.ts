@@ -127,7 +127,13 @@ export function cableSupplyCheck(c: CableSupplyInput, t: Thresholds = DEFAULT_TH
 	if (typeof c !== 'object' || c === null) throw new RangeError('cable run must be an object');
 	const conductorClass = c.conductorClass ?? DEFAULT_CONDUCTOR_CLASS;
 	const temperatureC = c.temperatureC ?? 20;
-	const dropV = cableVoltageDrop({ lengthM: c.lengthM, crossSectionMm2: c.crossSectionMm2, currentA: c.currentA, conductorClass, temperatureC });
+	const dropV = cableVoltageDrop({
+		lengthM: c.lengthM,
+		crossSectionMm2: c.crossSectionMm2,
+		currentA: c.currentA,
+		conductorClass,
+		temperatureC
+	});
 	const assumedNominal = c.supplyV === undefined;
 	const supplyV = assumedNominal ? t.nominalSupplyV : requireNumber('supplyV', c.supplyV, { min: 0, max: 1000, unit: 'V' });
 	const route = {

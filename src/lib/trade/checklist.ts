@@ -93,7 +93,7 @@ export function installationChecklist(
 		add({
 			id: 'bond-pad',
 			phase: 'seat',
-			text: "Apply adhesive and activator as the maker states and press the mounting pad on.",
+			text: 'Apply adhesive and activator as the maker states and press the mounting pad on.',
 			rule: 'mounting.pad-cure'
 		});
 		add({

@@ -34,7 +34,11 @@ export function evaluateInstalled(
 
 		if (mounting === 'stud') {
 			if (torque === undefined) {
-				out.push(finding('mounting.stud-torque', 'warn', `Record the torque applied to the stud (limit ${fmt(t.studTorqueLimitNm)} N·m).`, { limit: t.studTorqueLimitNm }));
+				out.push(
+					finding('mounting.stud-torque', 'warn', `Record the torque applied to the stud (limit ${fmt(t.studTorqueLimitNm)} N·m).`, {
+						limit: t.studTorqueLimitNm
+					})
+				);
 			} else if (isGood(torque)) {
 				out.push(
 					torque > t.studTorqueLimitNm
@@ -57,10 +61,15 @@ export function evaluateInstalled(
 			const inRange = volts >= t.supplyMinV && volts <= t.supplyMaxV;
 			out.push(
 				inRange
-					? finding('install.supply-voltage', 'pass', `${fmt(volts, 2)} V at the sensor (${fmt(t.supplyMinV, 1)}–${fmt(t.supplyMaxV, 1)} V).`, {
-							value: volts,
-							limit: volts < t.nominalSupplyV ? t.supplyMinV : t.supplyMaxV
-						})
+					? finding(
+							'install.supply-voltage',
+							'pass',
+							`${fmt(volts, 2)} V at the sensor (${fmt(t.supplyMinV, 1)}–${fmt(t.supplyMaxV, 1)} V).`,
+							{
+								value: volts,
+								limit: volts < t.nominalSupplyV ? t.supplyMinV : t.supplyMaxV
+							}
+						)
 					: finding(
 							'install.supply-voltage',
 							'fail',
@@ -72,7 +81,9 @@ export function evaluateInstalled(
 		if (polarity === undefined) out.push(finding('install.polarity', 'warn', 'Check the supply polarity with a meter and record it.'));
 		else if (polarity === true) out.push(finding('install.polarity', 'pass', 'Polarity checked.'));
 		else if (polarity === false) {
-			out.push(finding('install.polarity', 'fail', 'Polarity wrong. Switch the supply off and correct the wiring before connecting the sensor.'));
+			out.push(
+				finding('install.polarity', 'fail', 'Polarity wrong. Switch the supply off and correct the wiring before connecting the sensor.')
+			);
 		}
 	}
 	const findings = [...settingFindings, ...r.findings, ...out];

@@ -133,10 +133,7 @@ export function evaluateMachine(input: MachineEvaluationInput, thresholds?: Part
 			}
 			const monitored = r.flag(`${path}.monitored`, 'Bearing monitored', o.monitored, false);
 			const axialWanted = r.flag(`${path}.axialWanted`, 'Axial point wanted', o.axialWanted, false);
-			const name =
-				typeof o.label === 'string' && o.label.trim() !== ''
-					? o.label
-					: (BEARING_POSITION_LABEL[o.position] ?? o.position);
+			const name = typeof o.label === 'string' && o.label.trim() !== '' ? o.label : (BEARING_POSITION_LABEL[o.position] ?? o.position);
 			bearings.push({ position: o.position, name, monitored: monitored !== false, axialWanted: axialWanted === true });
 			const geometryFields = ['balls', 'ballDiameter', 'pitchDiameter'] as const;
 			const given = geometryFields.filter((k) => o[k] !== undefined && o[k] !== null);
@@ -249,7 +246,11 @@ export function evaluateMachine(input: MachineEvaluationInput, thresholds?: Part
 			machineOut.push(
 				dirs.has('axial')
 					? finding('direction.axial', 'pass', `The ${b.name} bearing has an axial point.`)
-					: finding('direction.axial', 'warn', `The ${b.name} bearing is marked for thrust monitoring but has no axial point. Add one on its housing.`)
+					: finding(
+							'direction.axial',
+							'warn',
+							`The ${b.name} bearing is marked for thrust monitoring but has no axial point. Add one on its housing.`
+						)
 			);
 		}
 	}
@@ -260,7 +261,9 @@ export function usableFrequencyFinding(mounting: Mounting, fMaxHz: number, t: Th
 	const usable = usableFrequencyHz(mounting, t);
 	const what = `The ${MOUNTING_LABEL[mounting]} is usable to about ${fmt(usable, 0)} Hz; the highest frequency of interest is ${fmt(fMaxHz, 0)} Hz`;
 	if (usable >= fMaxHz) return finding('mounting.usable-frequency', 'pass', `${what}.`, { value: fMaxHz, limit: usable });
-	const better = mounting === 'stud' ? 'Agree a sensor with a higher range with the vibration engineer.' : 'Use a tapped stud mount, which reaches highest.';
+	const better =
+		mounting === 'stud'
+			? 'Agree a sensor with a higher range with the vibration engineer.'
+			: 'Use a tapped stud mount, which reaches highest.';
 	return finding('mounting.usable-frequency', 'fail', `${what}. ${better}`, { value: fMaxHz, limit: usable });
 }
-

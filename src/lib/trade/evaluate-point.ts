@@ -143,9 +143,7 @@ export function machineFindings(m: ReadMachine, t: Thresholds): Finding[] {
 				finding(
 					'machine.speed-signal',
 					'pass',
-					m.speedMode === 'variable'
-						? 'Variable-speed machine with a speed signal.'
-						: 'Constant-speed machine: no speed signal needed.'
+					m.speedMode === 'variable' ? 'Variable-speed machine with a speed signal.' : 'Constant-speed machine: no speed signal needed.'
 				)
 			);
 		}
@@ -246,10 +244,15 @@ export function pointFindings(p: ReadPoint, t: Thresholds): Finding[] {
 						`Only ${fmt(p.flatDiameterMm)} mm of flat seat; the sensor base needs at least ${fmt(t.minFlatDiameterMm)} mm. Spot-face a larger seat if the metal allows it, or move the point.`,
 						{ value: p.flatDiameterMm, limit: t.minFlatDiameterMm }
 					)
-				: finding('seat.flat-diameter', 'pass', `${fmt(p.flatDiameterMm)} mm of flat seat (at least ${fmt(t.minFlatDiameterMm)} mm needed).`, {
-						value: p.flatDiameterMm,
-						limit: t.minFlatDiameterMm
-					})
+				: finding(
+						'seat.flat-diameter',
+						'pass',
+						`${fmt(p.flatDiameterMm)} mm of flat seat (at least ${fmt(t.minFlatDiameterMm)} mm needed).`,
+						{
+							value: p.flatDiameterMm,
+							limit: t.minFlatDiameterMm
+						}
+					)
 		);
 	}
 
@@ -300,10 +303,15 @@ export function pointFindings(p: ReadPoint, t: Thresholds): Finding[] {
 			} else if (isGood(p.wallThicknessMm)) {
 				out.push(
 					p.wallThicknessMm < need.wallMm
-						? finding('hole.thread-engagement', 'fail', `${what}; the ${fmt(p.wallThicknessMm)} mm wall is too thin. Bond a mounting pad instead.`, {
-								value: p.wallThicknessMm,
-								limit: need.wallMm
-							})
+						? finding(
+								'hole.thread-engagement',
+								'fail',
+								`${what}; the ${fmt(p.wallThicknessMm)} mm wall is too thin. Bond a mounting pad instead.`,
+								{
+									value: p.wallThicknessMm,
+									limit: need.wallMm
+								}
+							)
 						: finding('hole.thread-engagement', 'pass', `${what}; the ${fmt(p.wallThicknessMm)} mm wall is enough.`, {
 								value: p.wallThicknessMm,
 								limit: need.wallMm
@@ -356,7 +364,12 @@ export function pointFindings(p: ReadPoint, t: Thresholds): Finding[] {
 				)
 			);
 		} else {
-			out.push(finding('distance.bearing', 'pass', `${fmt(d)} mm from the bearing (within ${fmt(t.distanceWarnMm)} mm).`, { value: d, limit: t.distanceWarnMm }));
+			out.push(
+				finding('distance.bearing', 'pass', `${fmt(d)} mm from the bearing (within ${fmt(t.distanceWarnMm)} mm).`, {
+					value: d,
+					limit: t.distanceWarnMm
+				})
+			);
 		}
 	}
 
@@ -438,7 +451,8 @@ function supplyFinding(route: ReadRoute, t: Thresholds): Finding | undefined {
 	}
 	if (atSensor < t.supplyMinV) {
 		const ok = CONDUCTOR_SIZES_MM2.find(
-			(s) => volts - cableVoltageDrop({ lengthM, crossSectionMm2: s, currentA: amps, conductorClass: cls, temperatureC: temp }) >= t.supplyMinV
+			(s) =>
+				volts - cableVoltageDrop({ lengthM, crossSectionMm2: s, currentA: amps, conductorClass: cls, temperatureC: temp }) >= t.supplyMinV
 		);
 		const advice = ok && ok > crossSectionMm2 ? `Use ${ok} mm² conductors or a closer supply point.` : 'Use a closer supply point.';
 		return finding(
@@ -487,7 +501,11 @@ export function routeFindings(route: ReturnType<typeof readRoute>, t: Thresholds
 	if (route.fixed === true) out.push(finding('route.fixing', 'pass', 'Cable to be fixed along the route.'));
 	if (route.fixed === false) {
 		out.push(
-			finding('route.fixing', 'warn', 'The cable is not fixed along the route. Plan clips or ties so it cannot swing or reach rotating parts.')
+			finding(
+				'route.fixing',
+				'warn',
+				'The cable is not fixed along the route. Plan clips or ties so it cannot swing or reach rotating parts.'
+			)
 		);
 	}
 	const supply = supplyFinding(route, t);

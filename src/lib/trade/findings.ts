@@ -81,9 +81,7 @@ export function worstSeverity(findings: ReadonlyArray<Pick<Finding, 'severity'>>
 
 /** Worst first, then by rule id, so a list reads the same everywhere. */
 export function sortFindings<T extends Finding>(findings: readonly T[]): T[] {
-	return [...findings].sort(
-		(a, b) => SEVERITY_META[b.severity].rank - SEVERITY_META[a.severity].rank || a.rule.localeCompare(b.rule)
-	);
+	return [...findings].sort((a, b) => SEVERITY_META[b.severity].rank - SEVERITY_META[a.severity].rank || a.rule.localeCompare(b.rule));
 }
 
 export function countBySeverity(findings: ReadonlyArray<Pick<Finding, 'severity'>>): Record<Severity, number> {

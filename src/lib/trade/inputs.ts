@@ -25,7 +25,13 @@ export class InputReader {
 	readonly findings: Finding[] = [];
 
 	invalid(path: string, message: string): BadInput {
-		this.findings.push({ rule: 'input.invalid', severity: 'fail', message: `${message} (${path})`, reference: INPUT_REFERENCE, field: path });
+		this.findings.push({
+			rule: 'input.invalid',
+			severity: 'fail',
+			message: `${message} (${path})`,
+			reference: INPUT_REFERENCE,
+			field: path
+		});
 		return BAD;
 	}
 
@@ -67,10 +73,7 @@ export class InputReader {
 		const belowMin = r.exclusiveMin ? value <= r.min : value < r.min;
 		if (belowMin || value > r.max || (r.integer && !Number.isInteger(value))) {
 			const range = r.exclusiveMin ? `above ${r.min} and up to ${r.max}` : `${r.min} to ${r.max}`;
-			return this.invalid(
-				path,
-				`${label} of ${value} ${r.unit} cannot be right (expected ${range} ${r.unit}): check and correct it`
-			);
+			return this.invalid(path, `${label} of ${value} ${r.unit} cannot be right (expected ${range} ${r.unit}): check and correct it`);
 		}
 		return value;
 	}
@@ -80,10 +83,7 @@ export class InputReader {
 			return required ? this.missing(path, `${label} is missing: choose one`) : undefined;
 		}
 		if (!(allowed as readonly unknown[]).includes(value)) {
-			return this.invalid(
-				path,
-				`${label} ${describe(value)} is not one of the choices (${allowed.map(String).join(', ')})`
-			);
+			return this.invalid(path, `${label} ${describe(value)} is not one of the choices (${allowed.map(String).join(', ')})`);
 		}
 		return value as T;
 	}

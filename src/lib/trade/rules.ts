@@ -155,13 +155,7 @@ const RULE_LIST = [
 		firmness: 'from memory',
 		kind: 'check',
 		scope: 'point',
-		thresholds: [
-			'usableFreqStudHz',
-			'usableFreqPadFraction',
-			'usableFreqMagnetHz',
-			'usableFreqHandHeldHz',
-			'frequencyOfInterestFactor'
-		]
+		thresholds: ['usableFreqStudHz', 'usableFreqPadFraction', 'usableFreqMagnetHz', 'usableFreqHandHeldHz', 'frequencyOfInterestFactor']
 	},
 	{
 		id: 'machine.hazardous-area',
@@ -242,7 +236,7 @@ const RULE_LIST = [
 	{
 		id: 'mounting.pad-cure',
 		title: 'Pad adhesive cure time',
-		explanation: "Use the adhesive and activator the maker states and let it cure for the full time before mounting the sensor.",
+		explanation: 'Use the adhesive and activator the maker states and let it cure for the full time before mounting the sensor.',
 		reference: 'Common practice',
 		firmness: 'common practice',
 		kind: 'instruction',
@@ -286,9 +280,10 @@ export type RuleId = (typeof RULE_LIST)[number]['id'];
 
 export const RULES: readonly RuleInfo[] = RULE_LIST;
 
-export const RULES_BY_ID: Readonly<Record<RuleId, RuleInfo>> = Object.fromEntries(
-	RULE_LIST.map((r) => [r.id, r])
-) as unknown as Record<RuleId, RuleInfo>;
+export const RULES_BY_ID: Readonly<Record<RuleId, RuleInfo>> = Object.fromEntries(RULE_LIST.map((r) => [r.id, r])) as unknown as Record<
+	RuleId,
+	RuleInfo
+>;
 
 export function ruleInfo(id: string): RuleInfo | undefined {
 	return (RULES_BY_ID as Record<string, RuleInfo>)[id];

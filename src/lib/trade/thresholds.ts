@@ -68,7 +68,8 @@ export const THRESHOLD_META: readonly ThresholdMeta[] = [
 		max: 100,
 		step: 1,
 		firmness: 'common practice',
-		source: 'Tapped hole for an M6 stud: hole depth at least 15 mm, so the wall must be at least 15 mm thick, else bond a pad (common practice).'
+		source:
+			'Tapped hole for an M6 stud: hole depth at least 15 mm, so the wall must be at least 15 mm thick, else bond a pad (common practice).'
 	},
 	{
 		key: 'minThreadDepthMm',
@@ -145,7 +146,8 @@ export const THRESHOLD_META: readonly ThresholdMeta[] = [
 		max: 10000,
 		step: 10,
 		firmness: 'published',
-		source: 'Kim, Tan & Kosse 2008, Australian Journal of Mechanical Engineering 6(1):61–68: standard sensors suit machines at 600 r/min and above.'
+		source:
+			'Kim, Tan & Kosse 2008, Australian Journal of Mechanical Engineering 6(1):61–68: standard sensors suit machines at 600 r/min and above.'
 	},
 	{
 		key: 'maxSurfaceTempC',
@@ -211,7 +213,8 @@ export const THRESHOLD_META: readonly ThresholdMeta[] = [
 		max: 50,
 		step: 0.5,
 		firmness: 'common practice',
-		source: "As the sensor maker states; 10 N·m is a default limit (common practice). Bolt torque tables (VDI 2230) do not apply to sensor studs."
+		source:
+			'As the sensor maker states; 10 N·m is a default limit (common practice). Bolt torque tables (VDI 2230) do not apply to sensor studs.'
 	},
 	{
 		key: 'padCureMin',
@@ -222,7 +225,7 @@ export const THRESHOLD_META: readonly ThresholdMeta[] = [
 		max: 2880,
 		step: 1,
 		firmness: 'common practice',
-		source: "Adhesive as the maker says; allow the cure time before loading the pad (default 15 min, common practice)."
+		source: 'Adhesive as the maker says; allow the cure time before loading the pad (default 15 min, common practice).'
 	},
 	{
 		key: 'usableFreqStudHz',
@@ -244,7 +247,8 @@ export const THRESHOLD_META: readonly ThresholdMeta[] = [
 		max: 0.99,
 		step: 0.01,
 		firmness: 'from memory',
-		source: "Harris' Shock and Vibration Handbook: a bonded pad keeps about 80–95 % of the stud range (ordering published; figure from memory)."
+		source:
+			"Harris' Shock and Vibration Handbook: a bonded pad keeps about 80–95 % of the stud range (ordering published; figure from memory)."
 	},
 	{
 		key: 'usableFreqMagnetHz',
@@ -255,7 +259,8 @@ export const THRESHOLD_META: readonly ThresholdMeta[] = [
 		max: 50000,
 		step: 100,
 		firmness: 'from memory',
-		source: "Harris' Shock and Vibration Handbook: a flat magnet reaches about 5–10 kHz; the default takes the lower figure (ordering published; figure from memory)."
+		source:
+			"Harris' Shock and Vibration Handbook: a flat magnet reaches about 5–10 kHz; the default takes the lower figure (ordering published; figure from memory)."
 	},
 	{
 		key: 'usableFreqHandHeldHz',
@@ -359,20 +364,13 @@ function checkConsistency(overrides: Partial<Thresholds>, ctx: z.RefinementCtx) 
  */
 export const thresholdsSchema: z.ZodType<Partial<Thresholds>> = z
 	.strictObject(
-		Object.fromEntries(THRESHOLD_META.map((m) => [m.key, fieldSchema(m)])) as Record<
-			ThresholdKey,
-			ReturnType<typeof fieldSchema>
-		>
+		Object.fromEntries(THRESHOLD_META.map((m) => [m.key, fieldSchema(m)])) as Record<ThresholdKey, ReturnType<typeof fieldSchema>>
 	)
-	.superRefine((o, ctx) => checkConsistency(o as Partial<Thresholds>, ctx)) as unknown as z.ZodType<
-	Partial<Thresholds>
->;
+	.superRefine((o, ctx) => checkConsistency(o as Partial<Thresholds>, ctx)) as unknown as z.ZodType<Partial<Thresholds>>;
 
 export type ThresholdIssue = { key: string; message: string };
 
-export type ThresholdResolution =
-	| { ok: true; thresholds: Thresholds }
-	| { ok: false; issues: ThresholdIssue[] };
+export type ThresholdResolution = { ok: true; thresholds: Thresholds } | { ok: false; issues: ThresholdIssue[] };
 
 /** Merges overrides with the defaults, or lists what is wrong with them. */
 export function safeResolveThresholds(overrides: unknown = {}): ThresholdResolution {
@@ -395,10 +393,7 @@ export function resolveThresholds(overrides: unknown = {}): Thresholds {
 }
 
 /** Usable upper frequency of each mounting method, Hz, from the thresholds. */
-export function usableFrequencyHz(
-	mounting: 'stud' | 'bonded_pad' | 'magnet' | 'hand_held',
-	t: Thresholds = DEFAULT_THRESHOLDS
-): number {
+export function usableFrequencyHz(mounting: 'stud' | 'bonded_pad' | 'magnet' | 'hand_held', t: Thresholds = DEFAULT_THRESHOLDS): number {
 	switch (mounting) {
 		case 'stud':
 			return t.usableFreqStudHz;

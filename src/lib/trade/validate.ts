@@ -35,15 +35,9 @@ export function requireNumber(
 	return value;
 }
 
-export function requireOneOf<T extends string | number>(
-	field: string,
-	value: unknown,
-	allowed: readonly T[]
-): T {
+export function requireOneOf<T extends string | number>(field: string, value: unknown, allowed: readonly T[]): T {
 	if (!(allowed as readonly unknown[]).includes(value)) {
-		throw new RangeError(
-			`${field} must be one of ${allowed.map((a) => JSON.stringify(a)).join(', ')}, got ${describe(value)}`
-		);
+		throw new RangeError(`${field} must be one of ${allowed.map((a) => JSON.stringify(a)).join(', ')}, got ${describe(value)}`);
 	}
 	return value as T;
 }

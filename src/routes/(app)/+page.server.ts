@@ -63,7 +63,9 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 			status: x.status,
 			site: x.site_name,
 			role: x.role,
-			plannedDate: x.planned_date ? String(x.planned_date instanceof Date ? x.planned_date.toISOString().slice(0, 10) : x.planned_date) : null
+			plannedDate: x.planned_date
+				? String(x.planned_date instanceof Date ? x.planned_date.toISOString().slice(0, 10) : x.planned_date)
+				: null
 		}))
 	};
 };

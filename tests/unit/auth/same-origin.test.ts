@@ -4,7 +4,6 @@ import { BYPASSES } from '../../helpers/redirects';
 
 const ORIGIN = 'https://app.spotface.test';
 
-
 describe('sameOriginPath', () => {
 	it.each(BYPASSES.map((b) => [JSON.stringify(b), b]))('refuses %s', (_, next) => {
 		expect(sameOriginPath(next, ORIGIN)).toBe('/');

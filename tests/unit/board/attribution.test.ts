@@ -3,7 +3,16 @@
 // a label, so undo may put back an earlier one.
 import { expect, test } from 'vitest';
 import * as Y from 'yjs';
-import { addPoint, checkBoardChange, createUndoManager, maps, movePoint, readBoard, setEditor, updatePoint } from '../../../src/lib/board/model';
+import {
+	addPoint,
+	checkBoardChange,
+	createUndoManager,
+	maps,
+	movePoint,
+	readBoard,
+	setEditor,
+	updatePoint
+} from '../../../src/lib/board/model';
 
 test('operations sign the items they change with the editor of the document', () => {
 	const doc = new Y.Doc();
@@ -31,5 +40,7 @@ test('undo of an edit puts back the earlier signer, and the policy accepts it', 
 	laptop.on('update', (u: Uint8Array) => (update = u));
 	undo.undo();
 	expect(maps(laptop).points.get(id)!.get('updatedBy')).toBe('Teo Technician');
-	expect(checkBoardChange(server, update!, { role: 'engineer', userId: 'u-eng', name: 'Esme Engineer' }, { frozen: false })).toEqual({ ok: true });
+	expect(checkBoardChange(server, update!, { role: 'engineer', userId: 'u-eng', name: 'Esme Engineer' }, { frozen: false })).toEqual({
+		ok: true
+	});
 });

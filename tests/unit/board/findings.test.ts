@@ -28,7 +28,12 @@ describe('distances: entered wins over the photo estimate', () => {
 	test('a line measured on the calibrated photo is used and marked as an estimate', () => {
 		const doc = board();
 		const id = addPoint(doc, { x: 0, y: 0, ...goodPoint, distanceToBearingMm: null });
-		updatePoint(doc, id, { distanceLine: [[0, 0], [0, 40]] }); // 40 px × 2.5 mm/px = 100 mm
+		updatePoint(doc, id, {
+			distanceLine: [
+				[0, 0],
+				[0, 40]
+			]
+		}); // 40 px × 2.5 mm/px = 100 mm
 		const b = readBoard(doc);
 		expect(pointDistance(b.points[0], b.scale)).toEqual({ mm: 100, source: 'measured', measuredMm: 100 });
 		const e = evaluateBoard(b, { machine }).points.get(id)!;
@@ -43,7 +48,12 @@ describe('distances: entered wins over the photo estimate', () => {
 	test('a tape measurement typed in overrides the estimate', () => {
 		const doc = board();
 		const id = addPoint(doc, { x: 0, y: 0, ...goodPoint, distanceToBearingMm: 60 });
-		updatePoint(doc, id, { distanceLine: [[0, 0], [0, 80]] }); // 200 mm on the photo
+		updatePoint(doc, id, {
+			distanceLine: [
+				[0, 0],
+				[0, 80]
+			]
+		}); // 200 mm on the photo
 		const b = readBoard(doc);
 		expect(pointDistance(b.points[0], b.scale)).toEqual({ mm: 60, source: 'entered', measuredMm: 200 });
 		const e = evaluateBoard(b, { machine }).points.get(id)!;
@@ -52,12 +62,23 @@ describe('distances: entered wins over the photo estimate', () => {
 
 	test('without a scale a drawn line gives no distance', () => {
 		const doc = new Y.Doc();
-		const id = addPoint(doc, { x: 0, y: 0, distanceLine: [[0, 0], [0, 40]] });
+		const id = addPoint(doc, {
+			x: 0,
+			y: 0,
+			distanceLine: [
+				[0, 0],
+				[0, 40]
+			]
+		});
 		const b = readBoard(doc);
 		expect(pointDistance(b.points[0], b.scale)).toEqual({ mm: null, source: null, measuredMm: null });
 		expect(measureMm([0, 0], [3, 4], null)).toBeNull();
 		expect(measureMm([0, 0], [30, 40], board().getMap('meta').get('scale') as never)).toBeCloseTo(125, 9); // 50 px × 2.5
-		expect(evaluateBoard(b, { machine }).points.get(id)!.findings.find((f) => f.rule === 'distance.bearing')!.severity).toBe('warn');
+		expect(
+			evaluateBoard(b, { machine })
+				.points.get(id)!
+				.findings.find((f) => f.rule === 'distance.bearing')!.severity
+		).toBe('warn');
 	});
 });
 
@@ -94,9 +115,21 @@ describe('routes', () => {
 	test('the drawn length follows the scale; an entered length wins', () => {
 		const doc = board();
 		const p = addPoint(doc, { x: 0, y: 0 });
-		const r = addRoute(doc, { pointId: p, vertices: [[0, 0], [300, 0], [300, 400]] }); // 700 px = 1.75 m
+		const r = addRoute(doc, {
+			pointId: p,
+			vertices: [
+				[0, 0],
+				[300, 0],
+				[300, 400]
+			]
+		}); // 700 px = 1.75 m
 		let b = readBoard(doc);
-		expect(routeGeometry(b.routes[0], b.zones, b.scale)).toEqual({ photoLengthM: 1.75, lengthM: 1.75, lengthSource: 'scale', crossesZoneIds: [] });
+		expect(routeGeometry(b.routes[0], b.zones, b.scale)).toEqual({
+			photoLengthM: 1.75,
+			lengthM: 1.75,
+			lengthSource: 'scale',
+			crossesZoneIds: []
+		});
 		updateRoute(doc, r, { lengthEnteredM: 14 });
 		b = readBoard(doc);
 		expect(routeGeometry(b.routes[0], b.zones, b.scale)).toMatchObject({ photoLengthM: 1.75, lengthM: 14, lengthSource: 'entered' });
@@ -105,15 +138,40 @@ describe('routes', () => {
 	test('a route through a keep-out zone fails; one around it passes that rule', () => {
 		const doc = board();
 		const p = addPoint(doc, { x: 0, y: 0, ...goodPoint });
-		const z = addZone(doc, { polygon: [[100, -50], [200, -50], [200, 50], [100, 50]], kind: 'coupling' });
-		const r = addRoute(doc, { pointId: p, vertices: [[0, 0], [400, 0]], crossSectionMm2: 0.75, fixings: 'clips' });
+		const z = addZone(doc, {
+			polygon: [
+				[100, -50],
+				[200, -50],
+				[200, 50],
+				[100, 50]
+			],
+			kind: 'coupling'
+		});
+		const r = addRoute(doc, {
+			pointId: p,
+			vertices: [
+				[0, 0],
+				[400, 0]
+			],
+			crossSectionMm2: 0.75,
+			fixings: 'clips'
+		});
 		let b = readBoard(doc);
 		let ev = evaluateBoard(b, { machine });
 		expect(ev.routes.get(r)!.geometry.crossesZoneIds).toEqual([z]);
 		expect(ev.routes.get(r)!.findings.find((f) => f.rule === 'route.keep-out')!.severity).toBe('fail');
 		expect(ev.points.get(p)!.worst).toBe('fail');
 
-		doc.transact(() => doc.getMap<Y.Map<unknown>>('routes').get(r)!.set('vertices', [[0, 0], [0, 100], [400, 100]]));
+		doc.transact(() =>
+			doc
+				.getMap<Y.Map<unknown>>('routes')
+				.get(r)!
+				.set('vertices', [
+					[0, 0],
+					[0, 100],
+					[400, 100]
+				])
+		);
 		b = readBoard(doc);
 		ev = evaluateBoard(b, { machine });
 		expect(ev.routes.get(r)!.geometry.crossesZoneIds).toEqual([]);
@@ -124,7 +182,17 @@ describe('routes', () => {
 		// TRADE.md check value derived from IEC 60228 (class 5, 13.3 Ω/km): 2 × 50 m × 2 A × 0.0133 Ω/m = 2.66 V.
 		const doc = new Y.Doc();
 		const p = addPoint(doc, { x: 0, y: 0, ...goodPoint });
-		const r = addRoute(doc, { pointId: p, vertices: [[0, 0], [10, 0]], lengthEnteredM: 50, crossSectionMm2: 1.5, supplyV: 24, fixings: 'ties' });
+		const r = addRoute(doc, {
+			pointId: p,
+			vertices: [
+				[0, 0],
+				[10, 0]
+			],
+			lengthEnteredM: 50,
+			crossSectionMm2: 1.5,
+			supplyV: 24,
+			fixings: 'ties'
+		});
 		const ev = evaluateBoard(readBoard(doc), { machine, thresholds: { sensorCurrentA: 2 } });
 		const v = ev.routes.get(r)!.findings.find((f) => f.rule === 'route.supply-voltage')!;
 		expect(v.value).toBeCloseTo(24 - 2.66, 6);
@@ -137,7 +205,16 @@ describe('routes', () => {
 		// 200 m of 0.5 mm² class 5 (39.0 Ω/km, IEC 60228) at 2 A: 2 × 200 × 2 × 0.039 = 31.2 V drop.
 		const doc = new Y.Doc();
 		const p = addPoint(doc, { x: 0, y: 0, ...goodPoint });
-		const r = addRoute(doc, { pointId: p, vertices: [[0, 0], [10, 0]], lengthEnteredM: 200, crossSectionMm2: 0.5, supplyV: 24 });
+		const r = addRoute(doc, {
+			pointId: p,
+			vertices: [
+				[0, 0],
+				[10, 0]
+			],
+			lengthEnteredM: 200,
+			crossSectionMm2: 0.5,
+			supplyV: 24
+		});
 		const ev = evaluateBoard(readBoard(doc), { machine, thresholds: { sensorCurrentA: 2 } });
 		const v = ev.routes.get(r)!.findings.find((f) => f.rule === 'route.supply-voltage')!;
 		expect(v.severity).toBe('fail');
@@ -147,7 +224,13 @@ describe('routes', () => {
 	test('a route without length or conductor asks for them as checks', () => {
 		const doc = new Y.Doc();
 		const p = addPoint(doc, { x: 0, y: 0, ...goodPoint });
-		const r = addRoute(doc, { pointId: p, vertices: [[0, 0], [10, 0]] });
+		const r = addRoute(doc, {
+			pointId: p,
+			vertices: [
+				[0, 0],
+				[10, 0]
+			]
+		});
 		const ev = evaluateBoard(readBoard(doc), { machine });
 		const msgs = ev.routes.get(r)!.findings.map((f) => `${f.severity} ${f.rule} ${f.message}`);
 		expect(msgs.some((m) => /^warn route\.drawn Enter the cable length/.test(m))).toBe(true);
@@ -158,8 +241,20 @@ describe('routes', () => {
 	test('a second route from the same point is flagged', () => {
 		const doc = new Y.Doc();
 		const p = addPoint(doc, { x: 0, y: 0 });
-		const first = addRoute(doc, { pointId: p, vertices: [[0, 0], [10, 0]] });
-		const second = addRoute(doc, { pointId: p, vertices: [[0, 0], [0, 10]] });
+		const first = addRoute(doc, {
+			pointId: p,
+			vertices: [
+				[0, 0],
+				[10, 0]
+			]
+		});
+		const second = addRoute(doc, {
+			pointId: p,
+			vertices: [
+				[0, 0],
+				[0, 10]
+			]
+		});
 		const ev = evaluateBoard(readBoard(doc), { machine });
 		// Both may carry the same millisecond; either way exactly one is checked and the other flagged.
 		const flagged = [first, second].filter((r) => /only the first is checked/.test(ev.routes.get(r)!.findings[0]?.message ?? ''));

@@ -5,11 +5,32 @@ import { hitTest } from '../../../src/lib/board/hit';
 
 function setup() {
 	const doc = new Y.Doc();
-	const outer = addZone(doc, { polygon: [[0, 0], [400, 0], [400, 400], [0, 400]] });
-	const inner = addZone(doc, { polygon: [[100, 100], [200, 100], [200, 200], [100, 200]] });
+	const outer = addZone(doc, {
+		polygon: [
+			[0, 0],
+			[400, 0],
+			[400, 400],
+			[0, 400]
+		]
+	});
+	const inner = addZone(doc, {
+		polygon: [
+			[100, 100],
+			[200, 100],
+			[200, 200],
+			[100, 200]
+		]
+	});
 	const p1 = addPoint(doc, { x: 150, y: 150 });
 	const p2 = addPoint(doc, { x: 170, y: 150 });
-	const r = addRoute(doc, { pointId: p1, vertices: [[150, 150], [150, 300], [350, 300]] });
+	const r = addRoute(doc, {
+		pointId: p1,
+		vertices: [
+			[150, 150],
+			[150, 300],
+			[350, 300]
+		]
+	});
 	return { board: readBoard(doc), outer, inner, p1, p2, r };
 }
 

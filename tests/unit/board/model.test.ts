@@ -56,9 +56,20 @@ describe('points', () => {
 	test('moving a point moves the first corner of its routes; deleting it deletes them', () => {
 		const doc = new Y.Doc();
 		const p = addPoint(doc, { x: 10, y: 10 });
-		const r = addRoute(doc, { pointId: p, vertices: [[10, 10], [50, 10], [50, 90]] });
+		const r = addRoute(doc, {
+			pointId: p,
+			vertices: [
+				[10, 10],
+				[50, 10],
+				[50, 90]
+			]
+		});
 		movePoint(doc, p, 20, 30);
-		expect(readBoard(doc).routes[0].vertices).toEqual([[20, 30], [50, 10], [50, 90]]);
+		expect(readBoard(doc).routes[0].vertices).toEqual([
+			[20, 30],
+			[50, 10],
+			[50, 90]
+		]);
 		deletePoint(doc, p);
 		const b = readBoard(doc);
 		expect(b.points).toEqual([]);
@@ -83,23 +94,79 @@ describe('points', () => {
 describe('routes, zones and scale', () => {
 	test('a route must start at a point on the board and have two corners', () => {
 		const doc = new Y.Doc();
-		expect(() => addRoute(doc, { pointId: 'nope', vertices: [[0, 0], [1, 1]] })).toThrow(/start at a measurement point/);
+		expect(() =>
+			addRoute(doc, {
+				pointId: 'nope',
+				vertices: [
+					[0, 0],
+					[1, 1]
+				]
+			})
+		).toThrow(/start at a measurement point/);
 		const p = addPoint(doc, { x: 0, y: 0 });
 		expect(() => addRoute(doc, { pointId: p, vertices: [[0, 0]] })).toThrow(/at least two points/);
-		const r = addRoute(doc, { pointId: p, vertices: [[0, 0], [3, 4]], crossSectionMm2: 0.75 });
+		const r = addRoute(doc, {
+			pointId: p,
+			vertices: [
+				[0, 0],
+				[3, 4]
+			],
+			crossSectionMm2: 0.75
+		});
 		expect(() => updateRoute(doc, r, { crossSectionMm2: 0.8 })).toThrow(/choose 0.5, 0.75, 1, 1.5, 2.5 mm²/);
 		updateRoute(doc, r, { lengthEnteredM: 12.5, fixings: 'clips' });
-		setRouteVertices(doc, r, [[0, 0], [6, 8], [9, 9]]);
-		expect(readBoard(doc).routes[0]).toMatchObject({ crossSectionMm2: 0.75, lengthEnteredM: 12.5, fixings: 'clips', vertices: [[0, 0], [6, 8], [9, 9]] });
+		setRouteVertices(doc, r, [
+			[0, 0],
+			[6, 8],
+			[9, 9]
+		]);
+		expect(readBoard(doc).routes[0]).toMatchObject({
+			crossSectionMm2: 0.75,
+			lengthEnteredM: 12.5,
+			fixings: 'clips',
+			vertices: [
+				[0, 0],
+				[6, 8],
+				[9, 9]
+			]
+		});
 	});
 
 	test('zones need three corners; scale needs two distinct ends and a positive length', () => {
 		const doc = new Y.Doc();
-		expect(() => addZone(doc, { polygon: [[0, 0], [1, 1]] })).toThrow(/three corners/);
-		const z = addZone(doc, { polygon: [[0, 0], [10, 0], [10, 10]], kind: 'coupling' });
+		expect(() =>
+			addZone(doc, {
+				polygon: [
+					[0, 0],
+					[1, 1]
+				]
+			})
+		).toThrow(/three corners/);
+		const z = addZone(doc, {
+			polygon: [
+				[0, 0],
+				[10, 0],
+				[10, 10]
+			],
+			kind: 'coupling'
+		});
 		updateZone(doc, z, { label: 'Coupling guard' });
-		setZonePolygon(doc, z, [[0, 0], [20, 0], [20, 20], [0, 20]]);
-		expect(readBoard(doc).zones[0]).toMatchObject({ kind: 'coupling', label: 'Coupling guard', polygon: [[0, 0], [20, 0], [20, 20], [0, 20]] });
+		setZonePolygon(doc, z, [
+			[0, 0],
+			[20, 0],
+			[20, 20],
+			[0, 20]
+		]);
+		expect(readBoard(doc).zones[0]).toMatchObject({
+			kind: 'coupling',
+			label: 'Coupling guard',
+			polygon: [
+				[0, 0],
+				[20, 0],
+				[20, 20],
+				[0, 20]
+			]
+		});
 		expect(() => setScale(doc, { a: [0, 0], b: [0, 0], lengthMm: 100 })).toThrow(/two distinct ends/);
 		expect(() => setScale(doc, { a: [0, 0], b: [10, 0], lengthMm: 0 })).toThrow(/above 0/);
 		setScale(doc, { a: [0, 0], b: [200, 0], lengthMm: 500 });
@@ -112,7 +179,13 @@ describe('routes, zones and scale', () => {
 		const doc = new Y.Doc();
 		const undo = createUndoManager(doc);
 		const p = addPoint(doc, { x: 0, y: 0 });
-		const z = addZone(doc, { polygon: [[0, 0], [10, 0], [10, 10]] });
+		const z = addZone(doc, {
+			polygon: [
+				[0, 0],
+				[10, 0],
+				[10, 10]
+			]
+		});
 		undo.stopCapturing();
 		expect(deleteItems(doc, [p, z, 'unknown'])).toBe(2);
 		expect(readBoard(doc).points.length + readBoard(doc).zones.length).toBe(0);
@@ -128,12 +201,20 @@ describe('undo tracks only the user’s own edits', () => {
 		const undoA = createUndoManager(a);
 		const mine = addPoint(a, { x: 1, y: 1 });
 		const theirs = addPoint(b, { x: 2, y: 2 });
-		expect(readBoard(a).points.map((p) => p.id).sort()).toEqual([mine, theirs].sort());
+		expect(
+			readBoard(a)
+				.points.map((p) => p.id)
+				.sort()
+		).toEqual([mine, theirs].sort());
 		undoA.undo();
 		expect(readBoard(a).points.map((p) => p.id)).toEqual([theirs]);
 		expect(readBoard(b).points.map((p) => p.id)).toEqual([theirs]);
 		undoA.redo();
-		expect(readBoard(b).points.map((p) => p.id).sort()).toEqual([mine, theirs].sort());
+		expect(
+			readBoard(b)
+				.points.map((p) => p.id)
+				.sort()
+		).toEqual([mine, theirs].sort());
 	});
 
 	test('undo of a field edit restores the user’s previous value, not a peer’s later edit of another field', () => {

@@ -74,9 +74,29 @@ function reviewedBoard() {
 	const p2 = addPoint(doc, { x: 50, y: 10, createdBy: 'Tam' });
 	const p3 = addPoint(doc, { x: 90, y: 10, createdBy: 'Tam' });
 	const p4 = addPoint(doc, { x: 130, y: 10, createdBy: 'Tam' });
-	const r1 = addRoute(doc, { pointId: p1, vertices: [[10, 10], [10, 200]], crossSectionMm2: 0.75 });
-	const r4 = addRoute(doc, { pointId: p4, vertices: [[130, 10], [130, 200]] });
-	const z = addZone(doc, { polygon: [[300, 300], [400, 300], [400, 400]], kind: 'coupling' });
+	const r1 = addRoute(doc, {
+		pointId: p1,
+		vertices: [
+			[10, 10],
+			[10, 200]
+		],
+		crossSectionMm2: 0.75
+	});
+	const r4 = addRoute(doc, {
+		pointId: p4,
+		vertices: [
+			[130, 10],
+			[130, 200]
+		]
+	});
+	const z = addZone(doc, {
+		polygon: [
+			[300, 300],
+			[400, 300],
+			[400, 400]
+		],
+		kind: 'coupling'
+	});
 	decidePoint(doc, p1, 'approved', { userId: esme.userId, name: esme.name }, DECIDED_AT);
 	decidePoint(doc, p2, 'flagged', { userId: esme.userId, name: esme.name }, DECIDED_AT);
 	decidePoint(doc, p3, 'rejected', { userId: esme.userId, name: esme.name }, DECIDED_AT - 86_400_000);
@@ -101,7 +121,11 @@ describe('review decisions are protected from technicians', () => {
 		expect(r.ok).toBe(false);
 		if (r.ok) return;
 		const point = r.refusals.find((x) => x.id === p1)!;
-		expect(point).toMatchObject({ kind: 'point', code: 'rights.decided-point', decision: { status: 'approved', byName: 'Esme', at: DECIDED_AT } });
+		expect(point).toMatchObject({
+			kind: 'point',
+			code: 'rights.decided-point',
+			decision: { status: 'approved', byName: 'Esme', at: DECIDED_AT }
+		});
 		expect(point.reason).toBe('P1 was approved by Esme at 10:42 and cannot be deleted; ask Esme to reopen it.');
 		expect(r.refusals.find((x) => x.id === r1)).toMatchObject({ kind: 'route', code: 'rights.decided-route' });
 	});
@@ -110,8 +134,25 @@ describe('review decisions are protected from technicians', () => {
 		const { doc, p1, r1 } = reviewedBoard();
 		expect(codes(check(doc, tam, (d) => deleteRoute(d, r1)))).toEqual(['rights.decided-route']);
 		expect(codes(check(doc, tam, (d) => updateRoute(d, r1, { lengthEnteredM: 3 })))).toEqual(['rights.decided-route']);
-		expect(codes(check(doc, tam, (d) => setRouteVertices(d, r1, [[10, 10], [0, 0]])))).toEqual(['rights.decided-route']);
-		const added = check(doc, tam, (d) => addRoute(d, { pointId: p1, vertices: [[10, 10], [20, 20]] }));
+		expect(
+			codes(
+				check(doc, tam, (d) =>
+					setRouteVertices(d, r1, [
+						[10, 10],
+						[0, 0]
+					])
+				)
+			)
+		).toEqual(['rights.decided-route']);
+		const added = check(doc, tam, (d) =>
+			addRoute(d, {
+				pointId: p1,
+				vertices: [
+					[10, 10],
+					[20, 20]
+				]
+			})
+		);
 		expect(codes(added)).toEqual(['rights.decided-route']);
 		expect(added.ok ? '' : added.refusals[0].reason).toMatch(/^P1 was approved by Esme at 10:42 and takes no new cable route/);
 	});
@@ -153,7 +194,9 @@ describe('review decisions are protected from technicians', () => {
 			expect(r).toMatchObject({ ok: false, refusals: [{ id: p4, field: 'status', code: 'rights.decide' }] });
 		}
 		expect(codes(check(doc, tam, (d) => addPoint(d, { x: 1, y: 1, status: 'approved' })))).toEqual(['rights.decide']);
-		expect(codes(check(doc, tam, (d) => decidePoint(d, p4, 'approved', { userId: tam.userId, name: tam.name })))).toEqual(['rights.decide']);
+		expect(codes(check(doc, tam, (d) => decidePoint(d, p4, 'approved', { userId: tam.userId, name: tam.name })))).toEqual([
+			'rights.decide'
+		]);
 		// A stamp without the status is refused as well.
 		expect(codes(check(doc, tam, (d) => maps(d).points.get(p4)!.set('decidedByName', 'Esme')))).toEqual(['rights.decide']);
 	});
@@ -192,7 +235,14 @@ describe('review decisions are protected from technicians', () => {
 				(d) => deletePoint(d, p1),
 				(d) => deleteRoute(d, r1),
 				(d) => updateRoute(d, r1, { lengthEnteredM: 3 }),
-				(d) => addRoute(d, { pointId: p1, vertices: [[10, 10], [20, 20]] }),
+				(d) =>
+					addRoute(d, {
+						pointId: p1,
+						vertices: [
+							[10, 10],
+							[20, 20]
+						]
+					}),
 				(d) => updatePoint(d, p1, { flatDiameterMm: 10 }),
 				(d) => movePoint(d, p1, 400, 400),
 				(d) => updatePoint(d, p2, { status: 'proposed' }),
@@ -209,11 +259,21 @@ describe('review decisions are protected from technicians', () => {
 	test('reopening clears who decided; deciding again records the new decider', () => {
 		const { doc, p1 } = reviewedBoard();
 		decidePoint(doc, p1, 'proposed', esme);
-		expect(readBoard(doc).points.find((p) => p.id === p1)).toMatchObject({ status: 'proposed', decidedBy: null, decidedByName: null, decidedAt: null });
+		expect(readBoard(doc).points.find((p) => p.id === p1)).toMatchObject({
+			status: 'proposed',
+			decidedBy: null,
+			decidedByName: null,
+			decidedAt: null
+		});
 		// Reopened: the technician may change it again.
 		expect(check(doc, tam, (d) => updatePoint(d, p1, { flatDiameterMm: 10 }))).toEqual({ ok: true });
 		decidePoint(doc, p1, 'flagged', admin, 5);
-		expect(readBoard(doc).points.find((p) => p.id === p1)).toMatchObject({ status: 'flagged', decidedBy: 'u-ada', decidedByName: 'Ada', decidedAt: 5 });
+		expect(readBoard(doc).points.find((p) => p.id === p1)).toMatchObject({
+			status: 'flagged',
+			decidedBy: 'u-ada',
+			decidedByName: 'Ada',
+			decidedAt: 5
+		});
 	});
 });
 
@@ -225,13 +285,37 @@ describe('a technician surveys freely', () => {
 			(d) => updatePoint(d, p4, { flatDiameterMm: 10, mounting: 'bonded_pad', label: 'P4a', status: 'proposed' }),
 			(d) => movePoint(d, p4, 140, 20),
 			(d) => updateRoute(d, r4, { lengthEnteredM: 12, crossSectionMm2: 1.5, fixings: 'ties' }),
-			(d) => setRouteVertices(d, r4, [[130, 10], [0, 300]]),
+			(d) =>
+				setRouteVertices(d, r4, [
+					[130, 10],
+					[0, 300]
+				]),
 			(d) => deleteRoute(d, r4),
 			(d) => deletePoint(d, p4),
-			(d) => addRoute(d, { pointId: p4, vertices: [[130, 10], [500, 500]] }),
-			(d) => addZone(d, { polygon: [[0, 0], [5, 0], [5, 5]], kind: 'fan' }),
+			(d) =>
+				addRoute(d, {
+					pointId: p4,
+					vertices: [
+						[130, 10],
+						[500, 500]
+					]
+				}),
+			(d) =>
+				addZone(d, {
+					polygon: [
+						[0, 0],
+						[5, 0],
+						[5, 5]
+					],
+					kind: 'fan'
+				}),
 			(d) => updateZone(d, z, { label: 'Coupling' }),
-			(d) => setZonePolygon(d, z, [[0, 0], [9, 0], [9, 9]]),
+			(d) =>
+				setZonePolygon(d, z, [
+					[0, 0],
+					[9, 0],
+					[9, 9]
+				]),
 			(d) => deleteZone(d, z)
 		];
 		for (const op of ops) expect(check(doc, tam, op)).toEqual({ ok: true });
@@ -267,7 +351,13 @@ describe('a technician surveys freely', () => {
 	test('undo of their own delete of an undecided point is accepted', () => {
 		const doc = new Y.Doc();
 		const p = addPoint(doc, { x: 1, y: 1 });
-		addRoute(doc, { pointId: p, vertices: [[1, 1], [2, 2]] });
+		addRoute(doc, {
+			pointId: p,
+			vertices: [
+				[1, 1],
+				[2, 2]
+			]
+		});
 		const client = cloneDoc(doc);
 		const undo = createUndoManager(client);
 		deletePoint(client, p);
@@ -283,7 +373,11 @@ describe('a technician surveys freely', () => {
 describe('viewers and frozen boards', () => {
 	test('a viewer changes nothing', () => {
 		const { doc, p4 } = reviewedBoard();
-		for (const op of [(d: Y.Doc) => addPoint(d, { x: 1, y: 1 }), (d: Y.Doc) => updatePoint(d, p4, { notes: 'x' }), (d: Y.Doc) => deletePoint(d, p4)]) {
+		for (const op of [
+			(d: Y.Doc) => addPoint(d, { x: 1, y: 1 }),
+			(d: Y.Doc) => updatePoint(d, p4, { notes: 'x' }),
+			(d: Y.Doc) => deletePoint(d, p4)
+		]) {
 			const r = check(doc, vic, op);
 			expect(r).toMatchObject({ ok: false, refusals: [{ kind: 'document', code: 'rights.read-only' }] });
 			expect(r.ok ? '' : r.refusals[0].reason).toMatch(/Viewers can look at the board but not change it/);
@@ -332,10 +426,29 @@ describe('the schema of every item', () => {
 		expect(codes(raw(doc, p4, 'y', Number.POSITIVE_INFINITY))).toEqual(['schema.value']);
 		expect(codes(raw(doc, p4, 'x', 1e9))).toEqual(['schema.value']);
 		expect(codes(raw(doc, p4, 'surfaceTempC', Number.NaN))).toEqual(['schema.value']);
-		expect(codes(check(doc, esme, (d) => maps(d).routes.get(r4)!.set('vertices', [[0, 0], [Number.NaN, 1]])))).toEqual(['schema.value']);
+		expect(
+			codes(
+				check(doc, esme, (d) =>
+					maps(d)
+						.routes.get(r4)!
+						.set('vertices', [
+							[0, 0],
+							[Number.NaN, 1]
+						])
+				)
+			)
+		).toEqual(['schema.value']);
 		const many = Array.from({ length: 501 }, (_, i) => [i, i]);
 		expect(codes(check(doc, esme, (d) => maps(d).routes.get(r4)!.set('vertices', many)))).toEqual(['schema.value']);
-		expect(codes(check(doc, esme, (d) => maps(d).routes.get(r4)!.set('vertices', [[0, 0]])))).toEqual(['schema.value']);
+		expect(
+			codes(
+				check(doc, esme, (d) =>
+					maps(d)
+						.routes.get(r4)!
+						.set('vertices', [[0, 0]])
+				)
+			)
+		).toEqual(['schema.value']);
 	});
 
 	test('unknown keys in an item, a nested Yjs type or binary in a field, and removed fields are refused', () => {
@@ -368,7 +481,10 @@ describe('the schema of every item', () => {
 					const m = new Y.Map<unknown>();
 					maps(d).routes.set('r9', m);
 					m.set('pointId', 'nowhere');
-					m.set('vertices', [[0, 0], [1, 1]]);
+					m.set('vertices', [
+						[0, 0],
+						[1, 1]
+					]);
 				})
 			)
 		).toEqual(['schema.route-point']);
@@ -390,7 +506,11 @@ describe('the schema of every item', () => {
 			check(doc, esme, (d) => {
 				const m = new Y.Map<unknown>();
 				maps(d).zones.set(id, m);
-				m.set('polygon', [[0, 0], [1, 0], [1, 1]]);
+				m.set('polygon', [
+					[0, 0],
+					[1, 0],
+					[1, 1]
+				]);
 			});
 		expect(withId('a1b2c3d4e5f6a1b2c3d4e5f6')).toEqual({ ok: true });
 		expect(codes(withId('z'.repeat(500_000)))).toEqual(['schema.item']);
@@ -467,10 +587,54 @@ describe('limits', () => {
 		for (let i = 0; i < 3; i++) addPoint(doc, { x: i, y: i });
 		const [p] = readBoard(doc).points;
 		expect(codes(check(doc, tam, (d) => addPoint(d, { x: 9, y: 9 }), c))).toEqual(['limit.points']);
-		addRoute(doc, { pointId: p.id, vertices: [[0, 0], [1, 1]] });
-		expect(codes(check(doc, tam, (d) => addRoute(d, { pointId: p.id, vertices: [[0, 0], [2, 2]] }), c))).toEqual(['limit.routes']);
-		addZone(doc, { polygon: [[0, 0], [1, 0], [1, 1]] });
-		expect(codes(check(doc, tam, (d) => addZone(d, { polygon: [[0, 0], [2, 0], [2, 2]] }), c))).toEqual(['limit.zones']);
+		addRoute(doc, {
+			pointId: p.id,
+			vertices: [
+				[0, 0],
+				[1, 1]
+			]
+		});
+		expect(
+			codes(
+				check(
+					doc,
+					tam,
+					(d) =>
+						addRoute(d, {
+							pointId: p.id,
+							vertices: [
+								[0, 0],
+								[2, 2]
+							]
+						}),
+					c
+				)
+			)
+		).toEqual(['limit.routes']);
+		addZone(doc, {
+			polygon: [
+				[0, 0],
+				[1, 0],
+				[1, 1]
+			]
+		});
+		expect(
+			codes(
+				check(
+					doc,
+					tam,
+					(d) =>
+						addZone(d, {
+							polygon: [
+								[0, 0],
+								[2, 0],
+								[2, 2]
+							]
+						}),
+					c
+				)
+			)
+		).toEqual(['limit.zones']);
 		// Over the limit already (the limit was lowered): deleting is fine, adding is not.
 		const lower = { ...ctx, limits: { maxPoints: 1 } };
 		expect(check(doc, tam, (d) => deletePoint(d, p.id), lower)).toEqual({ ok: true });
@@ -591,7 +755,10 @@ describe('applyLocalChecked: the browser checks before it sends', () => {
 
 	test('a viewer or a frozen board is told before anything is made', () => {
 		const { doc, p4 } = reviewedBoard();
-		expect(applyLocalChecked(doc, vic, ctx, (d) => updatePoint(d, p4, { notes: 'x' }))).toMatchObject({ ok: false, refusals: [{ code: 'rights.read-only' }] });
+		expect(applyLocalChecked(doc, vic, ctx, (d) => updatePoint(d, p4, { notes: 'x' }))).toMatchObject({
+			ok: false,
+			refusals: [{ code: 'rights.read-only' }]
+		});
 		expect(applyLocalChecked(doc, esme, { ...ctx, frozen: true }, (d) => updatePoint(d, p4, { notes: 'x' }))).toMatchObject({
 			ok: false,
 			refusals: [{ code: 'rights.frozen' }]
@@ -633,7 +800,11 @@ const op: fc.Arbitrary<Op> = fc.oneof(
 	fc.record({ t: fc.constant('deleteRoute' as const), i: fc.nat() }),
 	fc.record({ t: fc.constant('addZone' as const), v: fc.array(vec, { minLength: 3, maxLength: 6 }) }),
 	fc.record({ t: fc.constant('deleteZone' as const), i: fc.nat() }),
-	fc.record({ t: fc.constant('decide' as const), i: fc.nat(), status: fc.constantFrom('proposed', 'flagged', 'rejected', 'approved') as fc.Arbitrary<'proposed'> }),
+	fc.record({
+		t: fc.constant('decide' as const),
+		i: fc.nat(),
+		status: fc.constantFrom('proposed', 'flagged', 'rejected', 'approved') as fc.Arbitrary<'proposed'>
+	}),
 	fc.record({ t: fc.constant('scale' as const), len: fc.integer({ min: 1, max: 100_000 }) })
 );
 
@@ -707,11 +878,16 @@ describe('properties', () => {
 					const after = readBoard(server);
 					for (const p of before.points.filter((x) => x.status === 'flagged')) {
 						// A flag asks for rework: the point may change, but stays, and stays flagged.
-						expect(after.points.find((x) => x.id === p.id)).toMatchObject({ status: 'flagged', decidedBy: p.decidedBy, decidedAt: p.decidedAt });
+						expect(after.points.find((x) => x.id === p.id)).toMatchObject({
+							status: 'flagged',
+							decidedBy: p.decidedBy,
+							decidedAt: p.decidedAt
+						});
 					}
 					for (const p of before.points.filter((x) => x.status === 'approved' || x.status === 'rejected')) {
 						expect(after.points.find((x) => x.id === p.id)).toEqual(p);
-						for (const route of before.routes.filter((x) => x.pointId === p.id)) expect(after.routes.find((x) => x.id === route.id)).toEqual(route);
+						for (const route of before.routes.filter((x) => x.pointId === p.id))
+							expect(after.routes.find((x) => x.id === route.id)).toEqual(route);
 						expect(after.routes.filter((x) => x.pointId === p.id)).toHaveLength(before.routes.filter((x) => x.pointId === p.id).length);
 					}
 					for (const p of after.points) if (!before.points.some((x) => x.id === p.id)) expect(p.status).toBe('proposed');
@@ -735,17 +911,20 @@ describe('properties', () => {
 			{ numRuns: 300 }
 		);
 		fc.assert(
-			fc.property(fc.array(fc.tuple(fc.nat({ max: valid.length - 1 }), fc.integer({ min: 0, max: 7 })), { minLength: 1, maxLength: 4 }), (flips) => {
-				const bytes = valid.slice();
-				for (const [i, bit] of flips) bytes[i] ^= 1 << bit;
-				const r = checkBoardChange(doc, bytes, esme, ctx);
-				if (r.ok) {
-					// Whatever got through reads back as a valid board.
-					const copy = cloneDoc(doc);
-					Y.applyUpdate(copy, bytes);
-					expect([...copy.share.keys()].every((k) => ['points', 'routes', 'zones', 'meta'].includes(k))).toBe(true);
+			fc.property(
+				fc.array(fc.tuple(fc.nat({ max: valid.length - 1 }), fc.integer({ min: 0, max: 7 })), { minLength: 1, maxLength: 4 }),
+				(flips) => {
+					const bytes = valid.slice();
+					for (const [i, bit] of flips) bytes[i] ^= 1 << bit;
+					const r = checkBoardChange(doc, bytes, esme, ctx);
+					if (r.ok) {
+						// Whatever got through reads back as a valid board.
+						const copy = cloneDoc(doc);
+						Y.applyUpdate(copy, bytes);
+						expect([...copy.share.keys()].every((k) => ['points', 'routes', 'zones', 'meta'].includes(k))).toBe(true);
+					}
 				}
-			}),
+			),
 			{ numRuns: 300 }
 		);
 	});

@@ -3,7 +3,14 @@
 import { describe, expect, test } from 'vitest';
 import * as Y from 'yjs';
 import { addPoint, addRoute, deletePoint, maps, movePoint, readBoard, updatePoint } from '../../../src/lib/board/model';
-import { describe as describeEntry, diffBoards, labelFor, reapply, unacceptedWork, type ChangeCheck } from '../../../src/lib/board/sync/set-aside';
+import {
+	describe as describeEntry,
+	diffBoards,
+	labelFor,
+	reapply,
+	unacceptedWork,
+	type ChangeCheck
+} from '../../../src/lib/board/sync/set-aside';
 import { OverwriteWatch, type OverwriteNotice } from '../../../src/lib/board/sync/overwrites';
 
 function copyOf(doc: Y.Doc): Y.Doc {
@@ -17,7 +24,13 @@ function serverBoard() {
 	const server = new Y.Doc();
 	const p1 = addPoint(server, { x: 100, y: 100, label: 'P1', flatDiameterMm: 40 });
 	const p2 = addPoint(server, { x: 300, y: 100, label: 'P2' });
-	const r1 = addRoute(server, { pointId: p1, vertices: [[100, 100], [400, 400]] });
+	const r1 = addRoute(server, {
+		pointId: p1,
+		vertices: [
+			[100, 100],
+			[400, 400]
+		]
+	});
 	updatePoint(server, p1, { status: 'approved' });
 	return { server, p1, p2, r1 };
 }
@@ -50,7 +63,12 @@ describe('unaccepted work', () => {
 			[p2, 'changed', ['notes']]
 		]);
 		// A plain comparison would also have reported the engineer's rename as the person's.
-		expect(diffBoards(mine, server).find((d) => d.itemId === p2)!.fields.map((f) => f.field).sort()).toEqual(['label', 'notes']);
+		expect(
+			diffBoards(mine, server)
+				.find((d) => d.itemId === p2)!
+				.fields.map((f) => f.field)
+				.sort()
+		).toEqual(['label', 'notes']);
 	});
 
 	test('what the check accepts is written again; what it refuses is returned with its reason', () => {
@@ -83,12 +101,24 @@ describe('unaccepted work', () => {
 		const fresh = copyOf(server);
 		const none = reapply(fresh, diffs, null, 'Only an engineer can change an approved point.', 'replay');
 		expect(none.kept).toEqual([]);
-		expect(none.refused.map((r) => r.reason)).toEqual(['Only an engineer can change an approved point.', 'Only an engineer can change an approved point.']);
+		expect(none.refused.map((r) => r.reason)).toEqual([
+			'Only an engineer can change an approved point.',
+			'Only an engineer can change an approved point.'
+		]);
 		const point = diffs.find((d) => d.kind === 'point')!;
 		expect(point.item).toMatchObject({ label: 'P1', status: 'approved', flatDiameterMm: 40 });
-		expect(labelFor(diffs.find((d) => d.itemId === r1)!, server)).toBe('cable route from P1');
+		expect(
+			labelFor(
+				diffs.find((d) => d.itemId === r1)!,
+				server
+			)
+		).toBe('cable route from P1');
 		expect(describeEntry({ ...point, label: 'P1' })).toBe('Deleted P1');
-		expect(readBoard(fresh).points.map((p) => p.label).sort()).toEqual(['P1', 'P2']);
+		expect(
+			readBoard(fresh)
+				.points.map((p) => p.label)
+				.sort()
+		).toEqual(['P1', 'P2']);
 	});
 
 	test('a moved point lists its coordinates; the replay writes under the fresh copy’s own client id', () => {
@@ -115,7 +145,11 @@ describe('overwritten offline values', () => {
 		const tablet = copyOf(server);
 		const notices: OverwriteNotice[] = [];
 		const remote = Symbol('server');
-		const watch = new OverwriteWatch(tablet, (o) => o === remote, (n) => notices.push(n));
+		const watch = new OverwriteWatch(
+			tablet,
+			(o) => o === remote,
+			(n) => notices.push(n)
+		);
 		updatePoint(tablet, p2, { notes: 'from the tablet' });
 		// The engineer's concurrent edit of the same field (and who made it), decided to win here.
 		const laptop = copyOf(server);
@@ -129,7 +163,14 @@ describe('overwritten offline values', () => {
 		Y.applyUpdate(tablet, Y.encodeStateAsUpdate(laptop, Y.encodeStateVector(tablet)), remote);
 		expect(readBoard(tablet).points.find((p) => p.id === p2)!.notes).toBe('from the laptop');
 		expect(notices).toHaveLength(1);
-		expect(notices[0]).toMatchObject({ itemId: p2, label: 'P2', field: 'notes', mine: 'from the tablet', theirs: 'from the laptop', by: 'Esme Ward' });
+		expect(notices[0]).toMatchObject({
+			itemId: p2,
+			label: 'P2',
+			field: 'notes',
+			mine: 'from the tablet',
+			theirs: 'from the laptop',
+			by: 'Esme Ward'
+		});
 		watch.destroy();
 	});
 
@@ -138,7 +179,11 @@ describe('overwritten offline values', () => {
 		const tablet = copyOf(server);
 		const notices: OverwriteNotice[] = [];
 		const remote = Symbol('server');
-		const watch = new OverwriteWatch(tablet, (o) => o === remote, (n) => notices.push(n));
+		const watch = new OverwriteWatch(
+			tablet,
+			(o) => o === remote,
+			(n) => notices.push(n)
+		);
 		updatePoint(tablet, p2, { component: 'motor NDE' });
 		const laptop = copyOf(server);
 		updatePoint(laptop, p2, { notes: 'other field' });
@@ -165,8 +210,12 @@ describe('overwritten offline values', () => {
 			laptop.clientID = tabletHigher ? 999 : 1001;
 			const notices: OverwriteNotice[] = [];
 			const remote = Symbol('server');
-			const watch = new OverwriteWatch(tablet, (o) => o === remote, (n) => notices.push(n));
-				updatePoint(tablet, p2, { flatDiameterMm: 35 });
+			const watch = new OverwriteWatch(
+				tablet,
+				(o) => o === remote,
+				(n) => notices.push(n)
+			);
+			updatePoint(tablet, p2, { flatDiameterMm: 35 });
 			updatePoint(laptop, p2, { flatDiameterMm: 28 });
 			Y.applyUpdate(tablet, Y.encodeStateAsUpdate(laptop, Y.encodeStateVector(tablet)), remote);
 			// Yjs keeps the concurrent map write of the higher client id.

@@ -87,9 +87,21 @@ describe('select tool', () => {
 
 	test('dragging a zone corner reshapes it; a route’s first corner stays with its point', () => {
 		const { h, doc, pans } = host();
-		const z = addZone(doc, { polygon: [[0, 0], [100, 0], [100, 100]] });
+		const z = addZone(doc, {
+			polygon: [
+				[0, 0],
+				[100, 0],
+				[100, 100]
+			]
+		});
 		const p = addPoint(doc, { x: 0, y: 0 });
-		const r = addRoute(doc, { pointId: p, vertices: [[0, 0], [50, 50]] });
+		const r = addRoute(doc, {
+			pointId: p,
+			vertices: [
+				[0, 0],
+				[50, 50]
+			]
+		});
 		const tool = createTool('select', h);
 		drag(tool, [100, 100], [150, 120], { kind: 'vertex', owner: 'zone', id: z, index: 2 });
 		expect(readBoard(doc).zones[0].polygon[2]).toEqual([150, 120]);
@@ -127,10 +139,24 @@ describe('route tool', () => {
 		expect(tool.canFinish()).toBe(false);
 		tap(tool, 100, 10);
 		tap(tool, 100, 200);
-		expect(tool.draft()).toMatchObject({ kind: 'polyline', points: [[10, 10], [100, 10], [100, 200]] });
+		expect(tool.draft()).toMatchObject({
+			kind: 'polyline',
+			points: [
+				[10, 10],
+				[100, 10],
+				[100, 200]
+			]
+		});
 		tap(tool, 105, 203); // within the snap radius of the last bend
 		const [route] = readBoard(doc).routes;
-		expect(route).toMatchObject({ pointId: p, vertices: [[10, 10], [100, 10], [100, 200]] });
+		expect(route).toMatchObject({
+			pointId: p,
+			vertices: [
+				[10, 10],
+				[100, 10],
+				[100, 200]
+			]
+		});
 		expect(sel()).toEqual([route.id]);
 		expect(tool.draft()).toBeNull();
 	});
@@ -143,13 +169,21 @@ describe('route tool', () => {
 		tap(tool, 50, 0);
 		tap(tool, 90, 0);
 		tool.key('Backspace');
-		expect(tool.draft()).toMatchObject({ points: [[0, 0], [50, 0]] });
+		expect(tool.draft()).toMatchObject({
+			points: [
+				[0, 0],
+				[50, 0]
+			]
+		});
 		tool.key('Escape');
 		expect(tool.draft()).toBeNull();
 		tap(tool, 0, 0, { kind: 'point', id: p });
 		tap(tool, 0, 80);
 		expect(tool.key('Enter')).toBe(true);
-		expect(readBoard(doc).routes[0].vertices).toEqual([[0, 0], [0, 80]]);
+		expect(readBoard(doc).routes[0].vertices).toEqual([
+			[0, 0],
+			[0, 80]
+		]);
 	});
 });
 
@@ -165,7 +199,11 @@ describe('zone tool', () => {
 		expect(tool.draft()).toMatchObject({ kind: 'polygon', closable: true });
 		tap(tool, 3, 4);
 		const [z] = readBoard(doc).zones;
-		expect(z.polygon).toEqual([[0, 0], [100, 0], [100, 100]]);
+		expect(z.polygon).toEqual([
+			[0, 0],
+			[100, 0],
+			[100, 100]
+		]);
 		expect(z.kind).toBe('other');
 		expect(sel()).toEqual([z.id]);
 	});

@@ -1,5 +1,16 @@
 import { describe, expect, test } from 'vitest';
-import { clampScale, fit, MAX_SCALE, MIN_SCALE, panBy, pinch, toImage, toScreen, wheelFactor, zoomAt } from '../../../src/lib/board/viewport';
+import {
+	clampScale,
+	fit,
+	MAX_SCALE,
+	MIN_SCALE,
+	panBy,
+	pinch,
+	toImage,
+	toScreen,
+	wheelFactor,
+	zoomAt
+} from '../../../src/lib/board/viewport';
 
 describe('viewport', () => {
 	test('screen and image coordinates are inverse', () => {
@@ -35,10 +46,30 @@ describe('viewport', () => {
 
 	test('pinch: spreading fingers zooms about their midpoint and moving them pans', () => {
 		const v = { x: 0, y: 0, scale: 1 };
-		const z = pinch(v, [[100, 100], [200, 100]], [[50, 100], [250, 100]]);
+		const z = pinch(
+			v,
+			[
+				[100, 100],
+				[200, 100]
+			],
+			[
+				[50, 100],
+				[250, 100]
+			]
+		);
 		expect(z.scale).toBe(2);
 		expect(toImage(z, [150, 100])).toEqual([150, 100]);
-		const p = pinch(v, [[100, 100], [200, 100]], [[130, 140], [230, 140]]);
+		const p = pinch(
+			v,
+			[
+				[100, 100],
+				[200, 100]
+			],
+			[
+				[130, 140],
+				[230, 140]
+			]
+		);
 		expect(p).toEqual({ x: 30, y: 40, scale: 1 });
 		expect(panBy(v, 5, -5)).toEqual({ x: 5, y: -5, scale: 1 });
 	});

@@ -74,7 +74,13 @@ describe('update checks', () => {
 });
 
 describe('UpdateWriter', () => {
-	const item = (n: number): PendingUpdate => ({ boardId: 'b', organisationId: 'o', userId: 'u', sessionId: 's', update: new Uint8Array([n]) });
+	const item = (n: number): PendingUpdate => ({
+		boardId: 'b',
+		organisationId: 'o',
+		userId: 'u',
+		sessionId: 's',
+		update: new Uint8Array([n])
+	});
 
 	it('batches what arrives while a write is in flight, and answers each once stored', async () => {
 		const calls: number[][] = [];
@@ -120,7 +126,13 @@ describe('UpdateWriter', () => {
 });
 
 describe('UpdateWriter when the database stays away', () => {
-	const item = (n: number): PendingUpdate => ({ boardId: 'b', organisationId: 'o', userId: 'u', sessionId: 's', update: new Uint8Array([n]) });
+	const item = (n: number): PendingUpdate => ({
+		boardId: 'b',
+		organisationId: 'o',
+		userId: 'u',
+		sessionId: 's',
+		update: new Uint8Array([n])
+	});
 
 	it('gives up after its tries, rejects with StorageUnavailable, reports down and comes back up by probing', async () => {
 		let failing = true;
@@ -231,7 +243,11 @@ describe('DocumentSize', () => {
 
 describe('collab byte limits from the environment', () => {
 	it('reads them and refuses nonsense', () => {
-		const o = collabOptionsFromEnv({ COLLAB_MAX_UPDATE_BYTES: '2048', COLLAB_BOARD_BYTE_BURST: '4096', COLLAB_SOCKET_BYTES_PER_SECOND: '8192' });
+		const o = collabOptionsFromEnv({
+			COLLAB_MAX_UPDATE_BYTES: '2048',
+			COLLAB_BOARD_BYTE_BURST: '4096',
+			COLLAB_SOCKET_BYTES_PER_SECOND: '8192'
+		});
 		expect([o.maxUpdateBytes, o.boardByteBurst, o.socketBytesPerSecond]).toEqual([2048, 4096, 8192]);
 		expect(() => collabOptionsFromEnv({ COLLAB_MAX_DOCUMENT_BYTES: '12' })).toThrow(/COLLAB_MAX_DOCUMENT_BYTES/);
 	});

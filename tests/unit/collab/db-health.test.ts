@@ -9,7 +9,9 @@ import { adapterPool, ADAPTER_PART } from '../../../src/lib/server/collab/adapte
 describe('isConnectionError', () => {
 	it('knows a lost connection from a bug', () => {
 		expect(isConnectionError(new Error('Connection terminated unexpectedly'))).toBe(true);
-		expect(isConnectionError(Object.assign(new Error('terminating connection due to administrator command'), { code: '57P01' }))).toBe(true);
+		expect(isConnectionError(Object.assign(new Error('terminating connection due to administrator command'), { code: '57P01' }))).toBe(
+			true
+		);
 		expect(isConnectionError(Object.assign(new Error('connect ECONNREFUSED 127.0.0.1:5432'), { code: 'ECONNREFUSED' }))).toBe(true);
 		expect(isConnectionError(Object.assign(new Error('the database system is starting up'), { code: '57P03' }))).toBe(true);
 		expect(isConnectionError(new TypeError("Cannot read properties of undefined (reading 'id')"))).toBe(false);

@@ -1,7 +1,18 @@
 import { describe, expect, it } from 'vitest';
 import sharp from 'sharp';
 import { DEFAULT_LIMITS, MediaError, processMedia, sniff } from '../../../src/lib/server/media/process';
-import { hasGpsIfd, HTML_FILE, SVG_FILE, jpeg, pdfDrawing, pixel, png, pngHeaderClaiming, sidewaysJpegWithGps, webp } from '../../helpers/images';
+import {
+	hasGpsIfd,
+	HTML_FILE,
+	SVG_FILE,
+	jpeg,
+	pdfDrawing,
+	pixel,
+	png,
+	pngHeaderClaiming,
+	sidewaysJpegWithGps,
+	webp
+} from '../../helpers/images';
 
 async function refused(bytes: Buffer, limits = DEFAULT_LIMITS) {
 	try {
@@ -24,7 +35,11 @@ describe('media processing', () => {
 	});
 
 	it('keeps JPEG, PNG and WebP in their format, with a WebP thumbnail', async () => {
-		for (const [make, mime] of [[jpeg, 'image/jpeg'], [png, 'image/png'], [webp, 'image/webp']] as const) {
+		for (const [make, mime] of [
+			[jpeg, 'image/jpeg'],
+			[png, 'image/png'],
+			[webp, 'image/webp']
+		] as const) {
 			const r = await processMedia(await make(800, 600));
 			expect(r.mimeType).toBe(mime);
 			expect(r.display.mimeType).toBe(mime);

@@ -21,7 +21,12 @@ describe('storage', () => {
 
 	it('chooses S3 only when a bucket is set; path style by default with a custom endpoint', () => {
 		expect(storageConfigFromEnv({ S3_BUCKET: '' }, '/d')).toEqual({ kind: 'disk', dir: '/d/media' });
-		expect(storageConfigFromEnv({ S3_BUCKET: 'b', S3_ENDPOINT: 'http://127.0.0.1:9000', S3_FORCE_PATH_STYLE: '' }, '/d')).toMatchObject({ kind: 's3', bucket: 'b', forcePathStyle: true, region: 'us-east-1' });
+		expect(storageConfigFromEnv({ S3_BUCKET: 'b', S3_ENDPOINT: 'http://127.0.0.1:9000', S3_FORCE_PATH_STYLE: '' }, '/d')).toMatchObject({
+			kind: 's3',
+			bucket: 'b',
+			forcePathStyle: true,
+			region: 'us-east-1'
+		});
 		expect(storageConfigFromEnv({ S3_BUCKET: 'b' }, '/d')).toMatchObject({ kind: 's3', forcePathStyle: false });
 	});
 });

@@ -10,7 +10,10 @@ const budget = Math.min(DEFAULT_LIMITS.maxPixels, DEFAULT_LIMITS.pdfRenderMaxPix
 describe('PDF pages are drawn within a pixel budget', () => {
 	it('keeps an ordinary drawing at about 200 dpi', () => {
 		// A3 landscape: 1191 × 842 pt → 200/72 px per pt.
-		expect(pdfRenderSize(1191, 842, DEFAULT_LIMITS)).toEqual({ width: Math.floor((1191 * 200) / 72), height: Math.floor((842 * 200) / 72) });
+		expect(pdfRenderSize(1191, 842, DEFAULT_LIMITS)).toEqual({
+			width: Math.floor((1191 * 200) / 72),
+			height: Math.floor((842 * 200) / 72)
+		});
 	});
 
 	it('draws an A0 sheet at the full display edge', () => {
@@ -41,7 +44,12 @@ describe('PDF pages are drawn within a pixel budget', () => {
 	});
 
 	it('refuses a page with no size', () => {
-		for (const [w, h] of [[0, 100], [100, -1], [Number.NaN, 100], [Number.POSITIVE_INFINITY, 10]]) {
+		for (const [w, h] of [
+			[0, 100],
+			[100, -1],
+			[Number.NaN, 100],
+			[Number.POSITIVE_INFINITY, 10]
+		]) {
 			expect(() => pdfRenderSize(w!, h!, DEFAULT_LIMITS)).toThrow(/no size/);
 		}
 	});
@@ -68,7 +76,20 @@ describe('stored file names', () => {
 	it('strips bidi controls, so a name cannot pretend to end in another extension', () => {
 		// "invoice‮gpj.exe" shows as "invoiceexe.jpg" in a right-to-left override.
 		expect(cleanFilename('invoice\u202Egpj.exe')).toBe('invoicegpj.exe');
-		for (const c of ['\u202A', '\u202B', '\u202C', '\u202D', '\u202E', '\u2066', '\u2067', '\u2068', '\u2069', '\u200E', '\u200F', '\u061C']) {
+		for (const c of [
+			'\u202A',
+			'\u202B',
+			'\u202C',
+			'\u202D',
+			'\u202E',
+			'\u2066',
+			'\u2067',
+			'\u2068',
+			'\u2069',
+			'\u200E',
+			'\u200F',
+			'\u061C'
+		]) {
 			expect(cleanFilename(`pump${c}-2.jpg`), `U+${c.codePointAt(0)!.toString(16)}`).toBe('pump-2.jpg');
 		}
 	});
@@ -127,7 +148,9 @@ describe('download names and headers', () => {
 
 	it('writes an ASCII filename and the full name as RFC 8187 filename*', () => {
 		expect(dispositionHeader('attachment', 'pump.jpg')).toBe('attachment; filename="pump.jpg"');
-		expect(dispositionHeader('attachment', 'Pumpe Übersicht "A".pdf')).toBe(`attachment; filename="Pumpe Ubersicht A.pdf"; filename*=UTF-8''Pumpe%20%C3%9Cbersicht%20A.pdf`);
+		expect(dispositionHeader('attachment', 'Pumpe Übersicht "A".pdf')).toBe(
+			`attachment; filename="Pumpe Ubersicht A.pdf"; filename*=UTF-8''Pumpe%20%C3%9Cbersicht%20A.pdf`
+		);
 		// % and \ are not left in the plain filename, where some clients would decode or unescape them.
 		expect(dispositionHeader('attachment', 'Ü 100%.pdf')).toBe(`attachment; filename="U 100_.pdf"; filename*=UTF-8''%C3%9C%20100%25.pdf`);
 		// Whatever was stored before names were cleaned, the header carries no bidi control.
@@ -143,7 +166,18 @@ describe('ids from forms, bodies and query strings', () => {
 	it('accepts a uuid and refuses anything else with the message', () => {
 		expect(isUuid(UUID)).toBe(true);
 		expect(idField('bad').parse(` ${UUID} `)).toBe(UUID);
-		for (const bad of ['', 'x', '------------------------------------', `${UUID}x`, "1' or '1'='1", '3f2504e0-4f89-41d3-9a0c-0305e82c330g', 42, null, [UUID], { id: UUID }]) {
+		for (const bad of [
+			'',
+			'x',
+			'------------------------------------',
+			`${UUID}x`,
+			"1' or '1'='1",
+			'3f2504e0-4f89-41d3-9a0c-0305e82c330g',
+			42,
+			null,
+			[UUID],
+			{ id: UUID }
+		]) {
 			const r = rowRefSchema('Reload the page.').safeParse({ id: bad });
 			expect(r.success, JSON.stringify(bad)).toBe(false);
 			expect(r.error!.issues[0]!.message).toBe('Reload the page.');

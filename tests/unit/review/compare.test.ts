@@ -24,8 +24,22 @@ const scale = { a: [900, 800] as [number, number], b: [1420, 800] as [number, nu
 const r1: ComparableRevision = {
 	number: 1,
 	boards: [{ boardId: 'b1', title: 'Pump drive side', scale }],
-	points: [point('p1', 'P1', 610, 560), point('p2', 'P2', 850, 610, { surface: 'sheet_cover', status: 'flagged' }), point('p3', 'P3', 960, 520)],
-	routes: [route('r1', 'p1', [[610, 560], [610, 400], [1500, 400]]), route('r3', 'p3', [[960, 520], [730, 600]])]
+	points: [
+		point('p1', 'P1', 610, 560),
+		point('p2', 'P2', 850, 610, { surface: 'sheet_cover', status: 'flagged' }),
+		point('p3', 'P3', 960, 520)
+	],
+	routes: [
+		route('r1', 'p1', [
+			[610, 560],
+			[610, 400],
+			[1500, 400]
+		]),
+		route('r3', 'p3', [
+			[960, 520],
+			[730, 600]
+		])
+	]
 };
 const r2: ComparableRevision = {
 	number: 2,
@@ -36,7 +50,22 @@ const r2: ComparableRevision = {
 		point('p2', 'P2', 880, 650, { surface: 'machined_housing', status: 'approved' }),
 		point('p4', 'P4', 1000, 500)
 	],
-	routes: [route('r1', 'p1', [[610, 560], [610, 400], [1500, 400]], { crossSectionMm2: 1.5 }), route('r4', 'p4', [[1000, 500], [1000, 900]])]
+	routes: [
+		route(
+			'r1',
+			'p1',
+			[
+				[610, 560],
+				[610, 400],
+				[1500, 400]
+			],
+			{ crossSectionMm2: 1.5 }
+		),
+		route('r4', 'p4', [
+			[1000, 500],
+			[1000, 900]
+		])
+	]
 };
 
 describe('compareRevisions', () => {
@@ -47,7 +76,9 @@ describe('compareRevisions', () => {
 		expect(d.points.added.map((x) => x.label)).toEqual(['P4']);
 		expect(d.points.removed.map((x) => x.label)).toEqual(['P3']);
 		// 50 px × 800 mm / 520 px = 76.9 mm
-		expect(d.points.moved).toEqual([{ item: { boardId: 'b1', boardTitle: 'Pump drive side', id: 'p2', label: 'P2' }, distancePx: 50, distanceMm: 76.9 }]);
+		expect(d.points.moved).toEqual([
+			{ item: { boardId: 'b1', boardTitle: 'Pump drive side', id: 'p2', label: 'P2' }, distancePx: 50, distanceMm: 76.9 }
+		]);
 		expect(d.points.changed).toEqual([
 			{
 				item: { boardId: 'b1', boardTitle: 'Pump drive side', id: 'p2', label: 'P2' },
@@ -61,13 +92,35 @@ describe('compareRevisions', () => {
 		expect(d.routes.removed.map((x) => [x.id, x.label])).toEqual([['r3', 'P3']]);
 		expect(d.routes.moved).toEqual([]);
 		expect(d.routes.changed).toEqual([
-			{ item: { boardId: 'b1', boardTitle: 'Pump drive side', id: 'r1', label: 'P1' }, changes: [{ field: 'crossSectionMm2', before: 0.75, after: 1.5 }] }
+			{
+				item: { boardId: 'b1', boardTitle: 'Pump drive side', id: 'r1', label: 'P1' },
+				changes: [{ field: 'crossSectionMm2', before: 0.75, after: 1.5 }]
+			}
 		]);
 	});
 
 	it('a redrawn route counts as moved by its largest shift; without a scale there are no mm', () => {
-		const a: ComparableRevision = { number: 1, boards: [{ boardId: 'b1', title: 'B', scale: null }], points: [point('p1', 'P1', 0, 0)], routes: [route('r1', 'p1', [[0, 0], [100, 0]])] };
-		const b: ComparableRevision = { ...a, number: 2, routes: [route('r1', 'p1', [[0, 0], [100, 20]])] };
+		const a: ComparableRevision = {
+			number: 1,
+			boards: [{ boardId: 'b1', title: 'B', scale: null }],
+			points: [point('p1', 'P1', 0, 0)],
+			routes: [
+				route('r1', 'p1', [
+					[0, 0],
+					[100, 0]
+				])
+			]
+		};
+		const b: ComparableRevision = {
+			...a,
+			number: 2,
+			routes: [
+				route('r1', 'p1', [
+					[0, 0],
+					[100, 20]
+				])
+			]
+		};
 		const d = compareRevisions(a, b);
 		expect(d.routes.moved).toEqual([{ item: { boardId: 'b1', boardTitle: 'B', id: 'r1', label: 'P1' }, distancePx: 20, distanceMm: null }]);
 		expect(d.routes.changed).toEqual([]);
@@ -77,7 +130,18 @@ describe('compareRevisions', () => {
 	it('geometry helpers', () => {
 		expect(mmPerPx(scale)).toBeCloseTo(800 / 520, 9);
 		expect(mmPerPx(null)).toBeNull();
-		expect(polylineShift([[0, 0], [10, 0]], [[0, 0], [10, 0]])).toBe(0);
+		expect(
+			polylineShift(
+				[
+					[0, 0],
+					[10, 0]
+				],
+				[
+					[0, 0],
+					[10, 0]
+				]
+			)
+		).toBe(0);
 		expect(polylineShift([[0, 0]], [[3, 4]])).toBe(5);
 	});
 });

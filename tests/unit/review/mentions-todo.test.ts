@@ -4,7 +4,8 @@ import { awaitsAction, surveyTodo } from '../../../src/lib/survey/todo';
 
 describe('mentions', () => {
 	it('finds picked members by id and typed e-mail addresses, once each', () => {
-		const body = 'Hi @[Esme Engineer](u-eng-1), see this. @[Esme](u-eng-1) again; also @teo@brookside.test and mail@example.com (not a mention).';
+		const body =
+			'Hi @[Esme Engineer](u-eng-1), see this. @[Esme](u-eng-1) again; also @teo@brookside.test and mail@example.com (not a mention).';
 		expect(parseMentions(body)).toEqual({ userIds: ['u-eng-1'], emails: ['teo@brookside.test'] });
 		expect(parseMentions('no mentions here, @ alone, @[broken](')).toEqual({ userIds: [], emails: [] });
 	});
@@ -18,7 +19,17 @@ describe('mentions', () => {
 
 describe('what is left to do', () => {
 	const boards = [
-		{ title: 'Drive side', points: 3, findings: [{ label: 'P2', worst: 'fail' as const }, { label: 'P3', worst: 'warn' as const }], routesWithoutSupply: [{ pointLabel: 'P3' }], undecided: [{ label: 'P3', status: 'proposed' }], rejected: [{ label: 'P2' }] },
+		{
+			title: 'Drive side',
+			points: 3,
+			findings: [
+				{ label: 'P2', worst: 'fail' as const },
+				{ label: 'P3', worst: 'warn' as const }
+			],
+			routesWithoutSupply: [{ pointLabel: 'P3' }],
+			undecided: [{ label: 'P3', status: 'proposed' }],
+			rejected: [{ label: 'P2' }]
+		},
 		{ title: 'Blank', points: 0, findings: [], routesWithoutSupply: [], undecided: [], rejected: [] }
 	];
 	it('a technician walking sees the findings, empty boards and routes without supply', () => {
@@ -36,11 +47,12 @@ describe('what is left to do', () => {
 			'Drive side: P2 is rejected; approving needs a confirmation.',
 			'Approve the layout, or request changes with a reason.'
 		]);
-		expect(surveyTodo({ role: 'technician', status: 'submitted', archived: false, planLines: [], boards, changesReason: null })[0]).toMatch(/waiting for the engineer/);
-		expect(surveyTodo({ role: 'technician', status: 'changes_requested', archived: false, planLines: [], boards: [], changesReason: 'Move P2' })).toEqual([
-			'Changes requested: Move P2',
-			'Every board is ready: submit the survey for review.'
-		]);
+		expect(surveyTodo({ role: 'technician', status: 'submitted', archived: false, planLines: [], boards, changesReason: null })[0]).toMatch(
+			/waiting for the engineer/
+		);
+		expect(
+			surveyTodo({ role: 'technician', status: 'changes_requested', archived: false, planLines: [], boards: [], changesReason: 'Move P2' })
+		).toEqual(['Changes requested: Move P2', 'Every board is ready: submit the survey for review.']);
 	});
 	it('who a survey waits for', () => {
 		expect(awaitsAction('changes_requested', 'technician', 'technician')).toMatch(/Changes requested/);

@@ -114,7 +114,10 @@ describe('board access policy', () => {
 											? REASON_FROZEN
 											: MATRIX[status][role];
 						it(`${role} on a ${status} survey${frozen ? ', frozen' : ''}${archived ? ', archived' : ''}${sessionLive ? '' : ', session ended'}`, () => {
-							expect(boardAccess({ role, surveyStatus: status, frozen, archived, sessionLive })).toEqual({ readOnly: expected !== null, reason: expected });
+							expect(boardAccess({ role, surveyStatus: status, frozen, archived, sessionLive })).toEqual({
+								readOnly: expected !== null,
+								reason: expected
+							});
 						});
 					}
 				}

@@ -16,7 +16,11 @@ function sourceFiles(dir: string): string[] {
 /** Every module specifier a file imports or re-exports, static or dynamic. */
 function specifiers(code: string): string[] {
 	const out: string[] = [];
-	const patterns = [/\b(?:import|export)\s[^'"]*?\bfrom\s*['"]([^'"]+)['"]/g, /\bimport\s*['"]([^'"]+)['"]/g, /\bimport\s*\(\s*['"]([^'"]+)['"]\s*\)/g];
+	const patterns = [
+		/\b(?:import|export)\s[^'"]*?\bfrom\s*['"]([^'"]+)['"]/g,
+		/\bimport\s*['"]([^'"]+)['"]/g,
+		/\bimport\s*\(\s*['"]([^'"]+)['"]\s*\)/g
+	];
 	for (const re of patterns) for (const m of code.matchAll(re)) out.push(m[1]);
 	return out;
 }
@@ -37,13 +41,19 @@ describe('repositories', () => {
 	});
 
 	it('import nothing from the live board (collab)', () => {
-		const offending = files.flatMap((f) => specifiers(readFileSync(f, 'utf8')).filter((s) => reachesCollab(f, s)).map((s) => `${f.slice(root.length + 1)} → ${s}`));
+		const offending = files.flatMap((f) =>
+			specifiers(readFileSync(f, 'utf8'))
+				.filter((s) => reachesCollab(f, s))
+				.map((s) => `${f.slice(root.length + 1)} → ${s}`)
+		);
 		expect(offending).toEqual([]);
 	});
 
 	it('the check sees such an import', () => {
 		const file = join(root, 'db', 'boards.ts');
-		expect(specifiers(`import { announceBoardChange } from '../collab/notify';`).filter((s) => reachesCollab(file, s))).toEqual(['../collab/notify']);
+		expect(specifiers(`import { announceBoardChange } from '../collab/notify';`).filter((s) => reachesCollab(file, s))).toEqual([
+			'../collab/notify'
+		]);
 		expect(specifiers(`export { compact } from "../collab/persistence";`).filter((s) => reachesCollab(file, s))).toHaveLength(1);
 		expect(specifiers(`const m = await import('$lib/server/collab/notify');`).filter((s) => reachesCollab(file, s))).toHaveLength(1);
 		expect(specifiers(`import { x } from './collab-like';`).filter((s) => reachesCollab(file, s))).toEqual([]);

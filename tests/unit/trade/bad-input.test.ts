@@ -44,7 +44,15 @@ describe('calculators throw a RangeError naming the field', () => {
 		['zone velocity negative', () => severityZone({ group: 1, foundation: 'rigid', velocityMmS: -0.1 }), /velocityMmS/],
 		['zone group 3', () => severityZone({ group: 3 as never, foundation: 'rigid', velocityMmS: 1 }), /group/],
 		['zone foundation', () => severityZone({ group: 1, foundation: 'soft' as never, velocityMmS: 1 }), /foundation/],
-		['polyline point', () => polylineLength([[0, 0], [Number.NaN, 1]]), /points\[1\]\[0\]/]
+		[
+			'polyline point',
+			() =>
+				polylineLength([
+					[0, 0],
+					[Number.NaN, 1]
+				]),
+			/points\[1\]\[0\]/
+		]
 	];
 	test.each(cases)('%s', (_name, call, message) => {
 		expect(call).toThrow(RangeError);
@@ -141,9 +149,7 @@ describe('evaluatePoint turns bad input into a fail finding', () => {
 					['route', 'supplyV', 0],
 					['route', 'currentA', 0]
 				] as const
-			).map(([part, key, min]) =>
-				fc.tuple(fc.constant([part, key] as const), fc.oneof(anyField, tooLow(min)))
-			)
+			).map(([part, key, min]) => fc.tuple(fc.constant([part, key] as const), fc.oneof(anyField, tooLow(min))))
 		);
 		fc.assert(
 			fc.property(fieldAndValue, ([[part, key], value]) => {

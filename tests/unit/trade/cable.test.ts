@@ -26,17 +26,17 @@ describe('cableVoltageDrop', () => {
 	test('temperature correction with the IEC 60028 coefficient', () => {
 		// IEC 60028: R_t = R_20 (1 + 0.00393 (t − 20)). At 70 °C: 1 + 0.00393 × 50 = 1.1965;
 		// 2.66 V × 1.1965 = 3.18269 V.
-		expect(
-			cableVoltageDrop({ lengthM: 50, crossSectionMm2: 1.5, currentA: 2, conductorClass: 5, temperatureC: 70 })
-		).toBeCloseTo(3.18269, 5);
+		expect(cableVoltageDrop({ lengthM: 50, crossSectionMm2: 1.5, currentA: 2, conductorClass: 5, temperatureC: 70 })).toBeCloseTo(
+			3.18269,
+			5
+		);
 		// At −10 °C: 1 + 0.00393 × (−30) = 0.8821; 2.66 × 0.8821 = 2.346386 V.
-		expect(
-			cableVoltageDrop({ lengthM: 50, crossSectionMm2: 1.5, currentA: 2, conductorClass: 5, temperatureC: -10 })
-		).toBeCloseTo(2.346386, 6);
+		expect(cableVoltageDrop({ lengthM: 50, crossSectionMm2: 1.5, currentA: 2, conductorClass: 5, temperatureC: -10 })).toBeCloseTo(
+			2.346386,
+			6
+		);
 		// At 20 °C the table value applies unchanged.
-		expect(
-			cableVoltageDrop({ lengthM: 50, crossSectionMm2: 1.5, currentA: 2, conductorClass: 5, temperatureC: 20 })
-		).toBeCloseTo(2.66, 10);
+		expect(cableVoltageDrop({ lengthM: 50, crossSectionMm2: 1.5, currentA: 2, conductorClass: 5, temperatureC: 20 })).toBeCloseTo(2.66, 10);
 	});
 
 	test('a typical sensor run: 30 m of 0.5 mm² class 5 at 30 mA', () => {
@@ -62,7 +62,9 @@ describe('cableVoltageDrop', () => {
 
 	test('an unlisted cross-section is refused with the list of sizes', () => {
 		expect(() => cableVoltageDrop({ lengthM: 10, crossSectionMm2: 1.2, currentA: 1 })).toThrow(RangeError);
-		expect(() => cableVoltageDrop({ lengthM: 10, crossSectionMm2: 1.2, currentA: 1 })).toThrow(/crossSectionMm2.*0\.5, 0\.75, 1, 1\.5, 2\.5/);
+		expect(() => cableVoltageDrop({ lengthM: 10, crossSectionMm2: 1.2, currentA: 1 })).toThrow(
+			/crossSectionMm2.*0\.5, 0\.75, 1, 1\.5, 2\.5/
+		);
 	});
 
 	test('conductorResistancePerMetre reads the table', () => {

@@ -105,7 +105,21 @@ describe('findings per item carry the rule and the field', () => {
 				...point
 			}
 		],
-		routes: [{ id: 'r1', pointId: 'p1', vertices: [[0, 0], [10, 0]], lengthEnteredM: 10, crossSectionMm2: 0.75, supplyV: 24, fixings: 'clips', ...route }],
+		routes: [
+			{
+				id: 'r1',
+				pointId: 'p1',
+				vertices: [
+					[0, 0],
+					[10, 0]
+				],
+				lengthEnteredM: 10,
+				crossSectionMm2: 0.75,
+				supplyV: 24,
+				fixings: 'clips',
+				...route
+			}
+		],
 		zones: [],
 		scale: null
 	});
@@ -113,7 +127,9 @@ describe('findings per item carry the rule and the field', () => {
 	test('a wrong value on a route field goes to the route, one on a point field stays with the point', () => {
 		const ev = evaluateBoard(content({ crossSectionMm2: 2000 }, { flatDiameterMm: 5000 }), { machine: pump });
 		const route = ev.routes.get('r1')!;
-		expect(route.findings).toContainEqual(expect.objectContaining({ rule: 'input.invalid', field: 'route.crossSectionMm2', severity: 'fail' }));
+		expect(route.findings).toContainEqual(
+			expect.objectContaining({ rule: 'input.invalid', field: 'route.crossSectionMm2', severity: 'fail' })
+		);
 		expect(route.findings.some((f) => f.field === 'point.flatDiameterMm')).toBe(false);
 		expect(ev.points.get('p1')!.findings).toContainEqual(expect.objectContaining({ rule: 'input.invalid', field: 'point.flatDiameterMm' }));
 	});
@@ -121,7 +137,9 @@ describe('findings per item carry the rule and the field', () => {
 	test('a value not given yet keeps its field and the missing flag', () => {
 		const ev = evaluateBoard(content({ crossSectionMm2: null, lengthEnteredM: null }), { machine: pump });
 		const fs = ev.routes.get('r1')!.findings;
-		expect(fs).toContainEqual(expect.objectContaining({ rule: 'route.supply-voltage', field: 'route.crossSectionMm2', missing: true, severity: 'warn' }));
+		expect(fs).toContainEqual(
+			expect.objectContaining({ rule: 'route.supply-voltage', field: 'route.crossSectionMm2', missing: true, severity: 'warn' })
+		);
 		expect(fs).toContainEqual(expect.objectContaining({ rule: 'route.drawn', field: 'route.lengthM', missing: true, severity: 'warn' }));
 	});
 });

@@ -10,7 +10,12 @@ import {
 // CWRU drive-end bearing geometry (Case Western Reserve University Bearing Data Center), in inches.
 const cwru = { balls: 9, ballDiameter: 0.3126, pitchDiameter: 1.537 };
 
-function point(id: string, bearing: string, direction: MachinePointInput['direction'], mounting: MachinePointInput['mounting'] = 'stud'): MachinePointInput {
+function point(
+	id: string,
+	bearing: string,
+	direction: MachinePointInput['direction'],
+	mounting: MachinePointInput['mounting'] = 'stud'
+): MachinePointInput {
 	return {
 		id,
 		bearing,
@@ -63,15 +68,25 @@ describe('evaluateMachine: coverage of bearing housings', () => {
 	});
 
 	test('a bearing not monitored needs no point', () => {
-		const m = machine({ bearings: [{ position: 'DE', ...cwru }, { position: 'NDE', ...cwru, monitored: false }] }, [
-			point('p1', 'DE', 'radial_h')
-		]);
+		const m = machine(
+			{
+				bearings: [
+					{ position: 'DE', ...cwru },
+					{ position: 'NDE', ...cwru, monitored: false }
+				]
+			},
+			[point('p1', 'DE', 'radial_h')]
+		);
 		expect(byRule(evaluateMachine(m).machine, 'direction.radial').map((f) => f.severity)).toEqual(['pass']);
 	});
 
 	test('points without a direction do not count', () => {
 		const r = evaluateMachine(machine({}, [point('p1', 'DE', null), point('p2', 'NDE', 'radial_v')]));
-		expect(byRule(r.machine, 'direction.radial').map((f) => f.severity).sort()).toEqual(['fail', 'pass']);
+		expect(
+			byRule(r.machine, 'direction.radial')
+				.map((f) => f.severity)
+				.sort()
+		).toEqual(['fail', 'pass']);
 	});
 
 	test('axial point asked for but missing warns; present passes', () => {
@@ -144,7 +159,11 @@ describe('mounting.usable-frequency', () => {
 		// 30 000 r/min = 500 Hz; 3 × 5.4152 × 500 = 8122.8 Hz. Defaults (from memory, Harris' handbook ordering):
 		// stud 10 000 Hz, pad 0.85 × 10 000 = 8500 Hz, magnet 5000 Hz.
 		const r = evaluateMachine(
-			machine({ speedRpm: 30000 }, [point('s', 'DE', 'radial_h', 'stud'), point('p', 'DE', 'radial_v', 'bonded_pad'), point('m', 'NDE', 'radial_h', 'magnet')])
+			machine({ speedRpm: 30000 }, [
+				point('s', 'DE', 'radial_h', 'stud'),
+				point('p', 'DE', 'radial_v', 'bonded_pad'),
+				point('m', 'NDE', 'radial_h', 'magnet')
+			])
 		);
 		expect(r.frequencyOfInterestHz).toBeCloseTo(8122.8, 0);
 		const sev = Object.fromEntries(r.points.map((p) => [p.id, byRule(p.findings, 'mounting.usable-frequency')[0]]));

@@ -1,11 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import {
-	evaluatePoint,
-	worstSeverity,
-	type Finding,
-	type PointEvaluationInput,
-	type Thresholds
-} from '../../../src/lib/trade';
+import { evaluatePoint, worstSeverity, type Finding, type PointEvaluationInput, type Thresholds } from '../../../src/lib/trade';
 
 /** A point that meets every rule with the default thresholds. */
 function good(): PointEvaluationInput {
@@ -314,13 +308,17 @@ describe('threshold overrides', () => {
 	});
 	test('a 12 mm wall passes when the organisation sets 12 mm / 8 mm thread', () => {
 		expect(
-			only(run({ point: { wallThicknessMm: 12, material: 'steel' } }, { minWallThicknessStudMm: 12, minThreadDepthMm: 8 }), 'hole.wall-thickness')
-				.severity
+			only(
+				run({ point: { wallThicknessMm: 12, material: 'steel' } }, { minWallThicknessStudMm: 12, minThreadDepthMm: 8 }),
+				'hole.wall-thickness'
+			).severity
 		).toBe('pass');
 	});
 	test('distance and temperature limits move', () => {
 		expect(only(run({ point: { distanceToBearingMm: 90 } }, { distanceWarnMm: 100 }), 'distance.bearing').severity).toBe('pass');
-		expect(only(run({ point: { distanceToBearingMm: 90 } }, { distanceFailMm: 80, distanceWarnMm: 50 }), 'distance.bearing').severity).toBe('fail');
+		expect(only(run({ point: { distanceToBearingMm: 90 } }, { distanceFailMm: 80, distanceWarnMm: 50 }), 'distance.bearing').severity).toBe(
+			'fail'
+		);
 		expect(only(run({ point: { surfaceTempC: 95 } }, { maxSurfaceTempC: 120 }), 'surface.temperature').severity).toBe('pass');
 	});
 	test('speed floor and sensor current move', () => {

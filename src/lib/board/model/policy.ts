@@ -240,9 +240,7 @@ function safeJudge(...args: Parameters<typeof judge>): BoardPolicyResult {
 	}
 }
 
-export type LocalChangeResult<T> =
-	| { ok: true; value: T; update: Uint8Array | null }
-	| { ok: false; refusals: BoardRefusal[]; value: T };
+export type LocalChangeResult<T> = { ok: true; value: T; update: Uint8Array | null } | { ok: false; refusals: BoardRefusal[]; value: T };
 
 const localShadows = new WeakMap<Y.Doc, Y.Doc>();
 /** Upper bound of the document's size: measured when the shadow was made, plus every update since. */
@@ -319,7 +317,10 @@ export function applyLocalChecked<T>(
 	if (gate) refusals.push(gate);
 	else if (update.byteLength > limits.maxUpdateBytes) {
 		refusals.push(
-			docRefusal('limit.update-bytes', `This change is ${bytes(update.byteLength)}; one change may be at most ${bytes(limits.maxUpdateBytes)}. Make it in smaller steps.`)
+			docRefusal(
+				'limit.update-bytes',
+				`This change is ${bytes(update.byteLength)}; one change may be at most ${bytes(limits.maxUpdateBytes)}. Make it in smaller steps.`
+			)
 		);
 	} else {
 		const r = safeJudge(doc, shadow, changes, actor, ctx, limits, update.byteLength, ctx.documentBytes ?? localBytes.get(doc));
@@ -351,7 +352,10 @@ function docRefusal(code: RefusalCode, reason: string, id?: string): BoardRefusa
 function gateRefusal(actor: BoardActor, ctx: BoardPolicyContext): BoardRefusal | null {
 	const role = typeof actor?.role === 'string' ? actor.role : '';
 	if (!canWriteBoard(role)) {
-		return docRefusal('rights.read-only', role === 'viewer' ? 'Viewers can look at the board but not change it.' : 'Your role cannot change this board.');
+		return docRefusal(
+			'rights.read-only',
+			role === 'viewer' ? 'Viewers can look at the board but not change it.' : 'Your role cannot change this board.'
+		);
 	}
 	if (ctx.frozen) return docRefusal('rights.frozen', 'The board is frozen, so it takes no changes; ask an engineer to unfreeze it.');
 	return null;
@@ -482,7 +486,9 @@ function sameValue(a: unknown, b: unknown, depth = 0): boolean {
 	if (!isPlainData(a, depth) || !isPlainData(b, depth)) return false;
 	const ka = Object.keys(a as object);
 	const kb = Object.keys(b as object);
-	return ka.length === kb.length && ka.every((k) => sameValue((a as Record<string, unknown>)[k], (b as Record<string, unknown>)[k], depth + 1));
+	return (
+		ka.length === kb.length && ka.every((k) => sameValue((a as Record<string, unknown>)[k], (b as Record<string, unknown>)[k], depth + 1))
+	);
 }
 
 function mapOf(root: Y.Map<unknown> | Y.Map<Y.Map<unknown>>, id: string): Y.Map<unknown> | null {
@@ -586,7 +592,9 @@ function judge(
 	}
 	for (const name of changes.strays) {
 		if (full()) break;
-		out.push(docRefusal('document.unknown-root', `The change writes "${name.slice(0, 40)}", which is not part of a board.`, name.slice(0, 200)));
+		out.push(
+			docRefusal('document.unknown-root', `The change writes "${name.slice(0, 40)}", which is not part of a board.`, name.slice(0, 200))
+		);
 	}
 	for (const where of changes.misplaced) {
 		if (full()) break;
@@ -647,7 +655,12 @@ function judge(
 			const deleted = ma === null && rootB.has(id);
 			const replaced = ma !== null && mb !== null && itemIdentity(ma) !== itemIdentity(mb);
 			if ((created || (rawAfter !== undefined && !ma)) && !ITEM_ID.test(id)) {
-				out.push({ kind, id: id.slice(0, 64), code: 'schema.item', reason: `A ${noun} cannot have the id "${id.length > 24 ? `${id.slice(0, 24)}…` : id}".` });
+				out.push({
+					kind,
+					id: id.slice(0, 64),
+					code: 'schema.item',
+					reason: `A ${noun} cannot have the id "${id.length > 24 ? `${id.slice(0, 24)}…` : id}".`
+				});
 				continue;
 			}
 			if (rawAfter !== undefined && !ma) {
@@ -723,7 +736,11 @@ function judge(
 				if (rework) continue;
 				if (isReviewDecision(statusOf(mb))) {
 					const { d, words, ask } = ctxWords(mb);
-					const what = deleted ? 'cannot be deleted' : changed.includes('status') ? 'can only be reopened by an engineer' : 'cannot be changed';
+					const what = deleted
+						? 'cannot be deleted'
+						: changed.includes('status')
+							? 'can only be reopened by an engineer'
+							: 'cannot be changed';
 					out.push({
 						kind,
 						id,
@@ -775,7 +792,12 @@ function judge(
 		if (full()) break;
 		if (!META_KEYS.has(key)) {
 			if (a.meta.has(key)) {
-				out.push({ kind: 'document', field: key.slice(0, 100), code: 'schema.unknown-key', reason: `The board has no setting "${key.slice(0, 40)}".` });
+				out.push({
+					kind: 'document',
+					field: key.slice(0, 100),
+					code: 'schema.unknown-key',
+					reason: `The board has no setting "${key.slice(0, 40)}".`
+				});
 			}
 			continue;
 		}

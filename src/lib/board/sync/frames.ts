@@ -56,9 +56,7 @@ export function assertConsumed(d: decoding.Decoder) {
 }
 
 export type Frame =
-	| { kind: 'step1'; stateVector: Uint8Array }
-	| { kind: 'update'; update: Uint8Array }
-	| { kind: 'awareness'; update: Uint8Array };
+	{ kind: 'step1'; stateVector: Uint8Array } | { kind: 'update'; update: Uint8Array } | { kind: 'awareness'; update: Uint8Array };
 
 /** Reads one frame strictly (the server's side): anything short, long or unknown is Malformed. */
 export function parseFrame(bytes: Uint8Array): Frame {

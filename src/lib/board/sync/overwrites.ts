@@ -102,7 +102,14 @@ export class OverwriteWatch {
 					const k = key({ itemId: item.itemId, field });
 					this.#written.delete(k);
 					if (!entry || entry.deleted) continue;
-					this.#written.set(k, { kind: item.kind, itemId: item.itemId, field, value: plain(item.map.get(field)), entry: entry.id, at: Date.now() });
+					this.#written.set(k, {
+						kind: item.kind,
+						itemId: item.itemId,
+						field,
+						value: plain(item.map.get(field)),
+						entry: entry.id,
+						at: Date.now()
+					});
 				}
 			});
 			while (this.#written.size > MAX_WRITTEN) this.#written.delete(this.#written.keys().next().value!);

@@ -34,9 +34,7 @@ export type JoinReply =
 	| { ok: false; error: string; retry?: boolean };
 
 export type MessageAck =
-	| { ok: true }
-	| { ok: false; refused: string; readOnly: boolean }
-	| { ok: false; retry: string; retryAfterMs: number };
+	{ ok: true } | { ok: false; refused: string; readOnly: boolean } | { ok: false; retry: string; retryAfterMs: number };
 
 /** Handshake refusals that are not final carry this in the error's `data`. */
 export interface HandshakeErrorData {

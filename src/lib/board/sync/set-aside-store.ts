@@ -21,7 +21,9 @@ export function readSetAside(boardId: string): SetAsideEntry[] {
 	try {
 		const raw = s.getItem(PREFIX + boardId);
 		const list = raw ? (JSON.parse(raw) as unknown) : [];
-		return Array.isArray(list) ? (list as SetAsideEntry[]).filter((e) => e && typeof e.id === 'string' && typeof e.reason === 'string') : [];
+		return Array.isArray(list)
+			? (list as SetAsideEntry[]).filter((e) => e && typeof e.id === 'string' && typeof e.reason === 'string')
+			: [];
 	} catch {
 		return [];
 	}

@@ -175,7 +175,13 @@ export interface Reapplied {
  * Tries each difference again on the server's copy, one at a time, with `check`; what passes is
  * applied with `origin`, the rest is returned with the reason (or `fallbackReason` without a check).
  */
-export function reapply(fresh: Y.Doc, differences: ItemDifference[], check: ChangeCheck | null, fallbackReason: string, origin: unknown): Reapplied {
+export function reapply(
+	fresh: Y.Doc,
+	differences: ItemDifference[],
+	check: ChangeCheck | null,
+	fallbackReason: string,
+	origin: unknown
+): Reapplied {
 	const kept: ItemDifference[] = [];
 	const refused: Reapplied['refused'] = [];
 	// Points first, so a route or a change that needs its point finds it.

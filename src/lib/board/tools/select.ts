@@ -67,10 +67,20 @@ export class SelectTool extends BaseTool {
 		const at: Vec2 = [p.x, p.y];
 		if (d.owner === 'route') {
 			const r = board.routes.find((x) => x.id === d.id);
-			if (r && d.index < r.vertices.length) setRouteVertices(this.host.doc, d.id, r.vertices.map((v, i) => (i === d.index ? at : v)));
+			if (r && d.index < r.vertices.length)
+				setRouteVertices(
+					this.host.doc,
+					d.id,
+					r.vertices.map((v, i) => (i === d.index ? at : v))
+				);
 		} else {
 			const z = board.zones.find((x) => x.id === d.id);
-			if (z && d.index < z.polygon.length) setZonePolygon(this.host.doc, d.id, z.polygon.map((v, i) => (i === d.index ? at : v)));
+			if (z && d.index < z.polygon.length)
+				setZonePolygon(
+					this.host.doc,
+					d.id,
+					z.polygon.map((v, i) => (i === d.index ? at : v))
+				);
 		}
 	}
 

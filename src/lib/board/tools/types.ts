@@ -8,9 +8,7 @@ import type { BoardSnapshot } from '../model/schema';
 export type ToolName = 'select' | 'point' | 'route' | 'zone' | 'scale' | 'measure' | 'pan';
 
 export type HitTarget =
-	| { kind: 'point' | 'route' | 'zone'; id: string }
-	| { kind: 'vertex'; owner: 'route' | 'zone'; id: string; index: number }
-	| null;
+	{ kind: 'point' | 'route' | 'zone'; id: string } | { kind: 'vertex'; owner: 'route' | 'zone'; id: string; index: number } | null;
 
 export interface ToolPointer {
 	/** Image coordinates. */

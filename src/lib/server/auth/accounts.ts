@@ -122,10 +122,7 @@ export async function confirmSignUp(db: DB, token: string) {
 				.returning(['id', 'name'])
 				.executeTakeFirstOrThrow();
 			const userId = generateIdFromEntropySize(10);
-			await trx
-				.insertInto('app_user')
-				.values({ id: userId, email: req.email, name: req.name, password_hash: req.password_hash })
-				.execute();
+			await trx.insertInto('app_user').values({ id: userId, email: req.email, name: req.name, password_hash: req.password_hash }).execute();
 			await trx.insertInto('member').values({ organisation_id: org.id, user_id: userId, role: 'admin' }).execute();
 			await record(trx, { organisationId: org.id, actorUserId: userId, action: 'organisation.created' });
 			return { userId, organisationId: org.id };
@@ -336,10 +333,7 @@ export async function acceptInvitation(db: DB, token: string, input: { name?: st
 			.executeTakeFirst();
 		if (!claimed) throw new AccountError('This invitation was already used.', 'token', 410);
 		if (!user) {
-			await trx
-				.insertInto('app_user')
-				.values({ id: userId, email: inv.email, name: input.name!, password_hash: passwordHash! })
-				.execute();
+			await trx.insertInto('app_user').values({ id: userId, email: inv.email, name: input.name!, password_hash: passwordHash! }).execute();
 		}
 		await trx
 			.insertInto('member')

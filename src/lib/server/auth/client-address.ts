@@ -44,6 +44,10 @@ export function clientAddress(event: { getClientAddress(): string }): string {
 
 /** Whether an address (as getClientAddress gives it) is this machine. */
 export function isLoopback(raw: string): boolean {
-	const a = raw.trim().replace(/^\[|\]$/g, '').replace(/%.*$/, '').toLowerCase();
+	const a = raw
+		.trim()
+		.replace(/^\[|\]$/g, '')
+		.replace(/%.*$/, '')
+		.toLowerCase();
 	return /^127\.\d+\.\d+\.\d+$/.test(a) || a === '::1' || /^::ffff:127\.\d+\.\d+\.\d+$/.test(a);
 }

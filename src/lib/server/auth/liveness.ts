@@ -7,7 +7,12 @@ import type { DB } from '../db/index';
 /** The ids among `ids` whose session is still live. */
 export async function liveSessionIds(db: DB, ids: readonly string[]): Promise<Set<string>> {
 	if (ids.length === 0) return new Set();
-	const rows = await db.selectFrom('user_session').select('id').where('id', 'in', [...ids]).where('expires_at', '>', new Date()).execute();
+	const rows = await db
+		.selectFrom('user_session')
+		.select('id')
+		.where('id', 'in', [...ids])
+		.where('expires_at', '>', new Date())
+		.execute();
 	return new Set(rows.map((r) => r.id));
 }
 

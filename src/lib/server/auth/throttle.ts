@@ -97,8 +97,14 @@ export function createThrottle(pool: pg.Pool, s: ThrottleSettings = DEFAULT_THRO
 	];
 
 	const limits = {
-		reset: { account: make('reset_account', s.resetPerAccount, s.windowSec), address: make('reset_address', s.resetPerAddress, s.windowSec) },
-		signUp: { account: make('signup_account', s.signUpPerAccount, s.windowSec), address: make('signup_address', s.signUpPerAddress, s.windowSec) },
+		reset: {
+			account: make('reset_account', s.resetPerAccount, s.windowSec),
+			address: make('reset_address', s.resetPerAddress, s.windowSec)
+		},
+		signUp: {
+			account: make('signup_account', s.signUpPerAccount, s.windowSec),
+			address: make('signup_address', s.signUpPerAddress, s.windowSec)
+		},
 		invite: { organisation: make('invite_org', s.invitePerOrganisation, s.windowSec) }
 	} satisfies Record<RequestKind, Record<string, RateLimiterPostgres>>;
 

@@ -4,8 +4,7 @@ import * as members from '../db/members';
 import type { Auth, Viewer } from './lucia';
 
 export type ViewerLookup =
-	| { ok: true; viewer: Viewer; fresh: boolean }
-	| { ok: false; reason: 'no-session' | 'expired' | 'not-a-member'; sessionId?: string };
+	{ ok: true; viewer: Viewer; fresh: boolean } | { ok: false; reason: 'no-session' | 'expired' | 'not-a-member'; sessionId?: string };
 
 export async function viewerFromSession(auth: Auth, db: DB, sessionId: string | null | undefined): Promise<ViewerLookup> {
 	if (!sessionId) return { ok: false, reason: 'no-session' };

@@ -35,7 +35,9 @@ export async function loadBoardAccess(db: DB, viewer: BoardViewer, boardId: stri
 	const [row, sessionLive] = await Promise.all([
 		db
 			.selectFrom('board')
-			.innerJoin('survey', (j) => j.onRef('survey.id', '=', 'board.survey_id').onRef('survey.organisation_id', '=', 'board.organisation_id'))
+			.innerJoin('survey', (j) =>
+				j.onRef('survey.id', '=', 'board.survey_id').onRef('survey.organisation_id', '=', 'board.organisation_id')
+			)
 			.innerJoin('member', (j) => j.onRef('member.organisation_id', '=', 'board.organisation_id').on('member.user_id', '=', viewer.userId))
 			.select([
 				'board.id',

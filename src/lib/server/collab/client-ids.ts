@@ -18,13 +18,19 @@ export function structClientIds(d: DecodedUpdate): Set<number> {
 
 export type OwnershipVerdict = { ok: true; claim: number[] } | { ok: false; clientId: number; reason: string };
 
-export const REASON_FORGED = 'This change was written under another person’s editing id and cannot be saved. Reload the board; your work is kept on this device.';
+export const REASON_FORGED =
+	'This change was written under another person’s editing id and cannot be saved. Reload the board; your work is kept on this device.';
 
 /**
  * Decides whether `userId` may write under `ids` on a board whose document already holds
  * `known` (its state vector) and whose ids are owned as `owners` says. New ids are to be claimed.
  */
-export function checkOwnership(owners: ReadonlyMap<number, string>, known: ReadonlyMap<number, number>, userId: string, ids: Iterable<number>): OwnershipVerdict {
+export function checkOwnership(
+	owners: ReadonlyMap<number, string>,
+	known: ReadonlyMap<number, number>,
+	userId: string,
+	ids: Iterable<number>
+): OwnershipVerdict {
 	const claim: number[] = [];
 	for (const id of ids) {
 		const owner = owners.get(id);

@@ -137,7 +137,11 @@ export async function compact(db: DB, boardId: string): Promise<CompactionResult
 		await trx
 			.deleteFrom('board_update')
 			.where('board_id', '=', boardId)
-			.where('seq', 'in', rows.map((r) => r.seq))
+			.where(
+				'seq',
+				'in',
+				rows.map((r) => r.seq)
+			)
 			.execute();
 		return { merged: rows.length, snapshotSeq: maxSeq.toString(), snapshotBytes: merged.byteLength };
 	});

@@ -132,7 +132,9 @@ export class UpdateWriter {
 						this.stats.failures++;
 						const message = (e as Error).message;
 						if (attempt + 1 >= this.retry.attempts) {
-							console.error(`[collab] storing ${batch.length} update(s) failed ${attempt + 1} times (${message}); the senders keep them and try again`);
+							console.error(
+								`[collab] storing ${batch.length} update(s) failed ${attempt + 1} times (${message}); the senders keep them and try again`
+							);
 							this.stats.givenUp += batch.length;
 							this.#setDown(true, message);
 							const err = new StorageUnavailable(`the database is not reachable (${message})`);

@@ -2,7 +2,14 @@ import type { DB } from './index';
 
 export async function record(
 	db: DB,
-	e: { organisationId: string | null; actorUserId: string | null; action: string; subjectType?: string; subjectId?: string; data?: Record<string, unknown> }
+	e: {
+		organisationId: string | null;
+		actorUserId: string | null;
+		action: string;
+		subjectType?: string;
+		subjectId?: string;
+		data?: Record<string, unknown>;
+	}
 ) {
 	await db
 		.insertInto('audit_event')

@@ -26,7 +26,9 @@ export interface MachineWithGeometry {
 export async function listMachinesWithBearingGeometry(db: DB, organisationId: string, limit = 500): Promise<MachineWithGeometry[]> {
 	const rows = await db
 		.selectFrom('bearing')
-		.innerJoin('machine', (j) => j.onRef('machine.id', '=', 'bearing.machine_id').onRef('machine.organisation_id', '=', 'bearing.organisation_id'))
+		.innerJoin('machine', (j) =>
+			j.onRef('machine.id', '=', 'bearing.machine_id').onRef('machine.organisation_id', '=', 'bearing.organisation_id')
+		)
 		.innerJoin('site', 'site.id', 'machine.site_id')
 		.where('bearing.organisation_id', '=', organisationId)
 		.where('bearing.archived_at', 'is', null)

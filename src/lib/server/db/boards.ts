@@ -24,7 +24,9 @@ const columns = [
 function base(db: DB) {
 	return db
 		.selectFrom('board')
-		.innerJoin('machine', (j) => j.onRef('machine.id', '=', 'board.machine_id').onRef('machine.organisation_id', '=', 'board.organisation_id'))
+		.innerJoin('machine', (j) =>
+			j.onRef('machine.id', '=', 'board.machine_id').onRef('machine.organisation_id', '=', 'board.organisation_id')
+		)
 		.innerJoin('survey', (j) => j.onRef('survey.id', '=', 'board.survey_id').onRef('survey.organisation_id', '=', 'board.organisation_id'))
 		.select(columns);
 }
@@ -48,7 +50,11 @@ export class BoardRuleError extends Error {}
  * Creates a board for a machine of the survey, over one of that machine's photos or drawings
  * (or none yet). Null when the survey is not the organisation's.
  */
-export async function create(db: DB, organisationId: string, input: { surveyId: string; machineId: string; mediaId?: string | null; title: string }) {
+export async function create(
+	db: DB,
+	organisationId: string,
+	input: { surveyId: string; machineId: string; mediaId?: string | null; title: string }
+) {
 	return db.transaction().execute(async (trx) => {
 		const survey = await trx
 			.selectFrom('survey')
@@ -57,7 +63,8 @@ export async function create(db: DB, organisationId: string, input: { surveyId: 
 			.where('id', '=', input.surveyId)
 			.executeTakeFirst();
 		if (!survey) return null;
-		if (isSettled(survey.status) || survey.archived_at) throw new BoardRuleError('An approved, closed or archived survey takes no new boards.');
+		if (isSettled(survey.status) || survey.archived_at)
+			throw new BoardRuleError('An approved, closed or archived survey takes no new boards.');
 		const inSurvey = await trx
 			.selectFrom('survey_machine')
 			.select('machine_id')
@@ -91,14 +98,25 @@ export async function create(db: DB, organisationId: string, input: { surveyId: 
 }
 
 export async function rename(db: DB, organisationId: string, id: string, title: string) {
-	const r = await db.updateTable('board').set({ title }).where('organisation_id', '=', organisationId).where('id', '=', id).returning('id').executeTakeFirst();
+	const r = await db
+		.updateTable('board')
+		.set({ title })
+		.where('organisation_id', '=', organisationId)
+		.where('id', '=', id)
+		.returning('id')
+		.executeTakeFirst();
 	return Boolean(r);
 }
 
 /** Points the board at another photo or drawing of its machine. */
 export async function setMedia(db: DB, organisationId: string, id: string, mediaId: string | null) {
 	return db.transaction().execute(async (trx) => {
-		const b = await trx.selectFrom('board').select(['machine_id']).where('organisation_id', '=', organisationId).where('id', '=', id).executeTakeFirst();
+		const b = await trx
+			.selectFrom('board')
+			.select(['machine_id'])
+			.where('organisation_id', '=', organisationId)
+			.where('id', '=', id)
+			.executeTakeFirst();
 		if (!b) return false;
 		if (mediaId) {
 			const m = await trx
@@ -121,7 +139,13 @@ export async function setMedia(db: DB, organisationId: string, id: string, media
  * `freezeBoard` in src/lib/server/boards/service.ts.
  */
 export async function freeze(db: DB, organisationId: string, id: string) {
-	const b = await db.selectFrom('board').select(['id', 'frozen_at']).where('organisation_id', '=', organisationId).where('id', '=', id).forUpdate().executeTakeFirst();
+	const b = await db
+		.selectFrom('board')
+		.select(['id', 'frozen_at'])
+		.where('organisation_id', '=', organisationId)
+		.where('id', '=', id)
+		.forUpdate()
+		.executeTakeFirst();
 	if (!b) return false;
 	if (!b.frozen_at) await db.updateTable('board').set({ frozen_at: new Date() }).where('id', '=', id).execute();
 	return true;
@@ -129,7 +153,13 @@ export async function freeze(db: DB, organisationId: string, id: string) {
 
 /** Lifts a freeze (e.g. when a revision is reopened); announce it: `unfreezeBoard` in boards/service.ts. */
 export async function unfreeze(db: DB, organisationId: string, id: string) {
-	const r = await db.updateTable('board').set({ frozen_at: null }).where('organisation_id', '=', organisationId).where('id', '=', id).returning('id').executeTakeFirst();
+	const r = await db
+		.updateTable('board')
+		.set({ frozen_at: null })
+		.where('organisation_id', '=', organisationId)
+		.where('id', '=', id)
+		.returning('id')
+		.executeTakeFirst();
 	return r !== undefined;
 }
 

@@ -15,7 +15,13 @@ import {
 
 const iso = (d: Date | string | null) => (d == null ? null : new Date(d).toISOString());
 
-type MachineRow = Machine & { site_name: string; area_name: string | null; bearings?: string | number | null; photos?: string | number | null; thumb_media_id?: string | null };
+type MachineRow = Machine & {
+	site_name: string;
+	area_name: string | null;
+	bearings?: string | number | null;
+	photos?: string | number | null;
+	thumb_media_id?: string | null;
+};
 
 export function machineDto(m: MachineRow) {
 	return {
@@ -74,7 +80,13 @@ function filtered(db: DB, organisationId: string, q: Partial<MachineListQuery>) 
 	if (q.q) {
 		const p = likePattern(q.q);
 		base = base.where((eb) =>
-			eb.or([eb('machine.name', 'ilike', p), eb('machine.tag', 'ilike', p), eb('machine.notes', 'ilike', p), eb('area.name', 'ilike', p), eb('site.name', 'ilike', p)])
+			eb.or([
+				eb('machine.name', 'ilike', p),
+				eb('machine.tag', 'ilike', p),
+				eb('machine.notes', 'ilike', p),
+				eb('area.name', 'ilike', p),
+				eb('site.name', 'ilike', p)
+			])
 		);
 	}
 	return base;
@@ -88,8 +100,18 @@ export async function listMachines(db: DB, organisationId: string, q: MachineLis
 			.selectAll('machine')
 			.select(['site.name as site_name', 'area.name as area_name'])
 			.select((eb) => [
-				eb.selectFrom('bearing').select(eb.fn.countAll<string>().as('n')).whereRef('bearing.machine_id', '=', 'machine.id').where('bearing.archived_at', 'is', null).as('bearings'),
-				eb.selectFrom('media').select(eb.fn.countAll<string>().as('n')).whereRef('media.machine_id', '=', 'machine.id').where('media.archived_at', 'is', null).as('photos'),
+				eb
+					.selectFrom('bearing')
+					.select(eb.fn.countAll<string>().as('n'))
+					.whereRef('bearing.machine_id', '=', 'machine.id')
+					.where('bearing.archived_at', 'is', null)
+					.as('bearings'),
+				eb
+					.selectFrom('media')
+					.select(eb.fn.countAll<string>().as('n'))
+					.whereRef('media.machine_id', '=', 'machine.id')
+					.where('media.archived_at', 'is', null)
+					.as('photos'),
 				eb
 					.selectFrom('media')
 					.select('media.id')
@@ -141,13 +163,19 @@ async function checkPlace(db: DB, organisationId: string, siteId: string, areaId
 	if (areaId) {
 		const area = await getArea(db, organisationId, areaId);
 		if (!area) throw new RegisterError(404, 'No such area in your organisation.', 'areaId');
-		if (area.siteId !== siteId) throw new RegisterError(400, 'This area belongs to another site: choose an area of the machine\'s site.', 'areaId');
+		if (area.siteId !== siteId)
+			throw new RegisterError(400, "This area belongs to another site: choose an area of the machine's site.", 'areaId');
 		if (area.archivedAt) throw new RegisterError(409, 'This area is archived: choose a live area.', 'areaId');
 	}
 }
 
 function isTagConflict(e: unknown) {
-	return typeof e === 'object' && e !== null && (e as { code?: string }).code === '23505' && String((e as { constraint?: string }).constraint) === 'machine_tag_key';
+	return (
+		typeof e === 'object' &&
+		e !== null &&
+		(e as { code?: string }).code === '23505' &&
+		String((e as { constraint?: string }).constraint) === 'machine_tag_key'
+	);
 }
 
 const MACHINE_MAP = {
@@ -308,7 +336,12 @@ export async function listBearings(
 }
 
 export async function getBearing(db: DB, organisationId: string, id: string) {
-	const b = await db.selectFrom('bearing').selectAll().where('organisation_id', '=', organisationId).where('id', '=', id).executeTakeFirst();
+	const b = await db
+		.selectFrom('bearing')
+		.selectAll()
+		.where('organisation_id', '=', organisationId)
+		.where('id', '=', id)
+		.executeTakeFirst();
 	return b ? bearingDto(b) : null;
 }
 
@@ -355,5 +388,10 @@ export async function archiveBearing(db: DB, organisationId: string, id: string)
 }
 
 async function touchMachine(db: DB, organisationId: string, id: string) {
-	await db.updateTable('machine').set({ updated_at: sql<Date>`now()` }).where('organisation_id', '=', organisationId).where('id', '=', id).execute();
+	await db
+		.updateTable('machine')
+		.set({ updated_at: sql<Date>`now()` })
+		.where('organisation_id', '=', organisationId)
+		.where('id', '=', id)
+		.execute();
 }

@@ -67,7 +67,11 @@ export async function listMedia(
 
 /** The full row (with storage keys) for serving; null for another organisation's id. */
 export function getMediaRow(db: DB, organisationId: string, id: string) {
-	return base(db, organisationId).selectAll('media').select('app_user.name as uploaded_by_name').where('media.id', '=', id).executeTakeFirst();
+	return base(db, organisationId)
+		.selectAll('media')
+		.select('app_user.name as uploaded_by_name')
+		.where('media.id', '=', id)
+		.executeTakeFirst();
 }
 
 export async function getMedia(db: DB, organisationId: string, id: string) {

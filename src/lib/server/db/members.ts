@@ -80,11 +80,7 @@ export async function remove(db: DB, organisationId: string, memberId: string) {
 		if (m.role === 'admin' && (await countAdmins(trx, organisationId)) <= 1) throw new LastAdminError();
 		await trx.deleteFrom('member').where('id', '=', memberId).execute();
 		// Sessions in this organisation end with the membership.
-		await trx
-			.deleteFrom('user_session')
-			.where('user_id', '=', m.user_id)
-			.where('organisation_id', '=', organisationId)
-			.execute();
+		await trx.deleteFrom('user_session').where('user_id', '=', m.user_id).where('organisation_id', '=', organisationId).execute();
 		return m;
 	});
 }

@@ -6,12 +6,7 @@ export function get(db: DB, organisationId: string) {
 }
 
 export function update(db: DB, organisationId: string, patch: { name?: string }) {
-	return db
-		.updateTable('organisation')
-		.set(patch)
-		.where('id', '=', organisationId)
-		.returningAll()
-		.executeTakeFirst();
+	return db.updateTable('organisation').set(patch).where('id', '=', organisationId).returningAll().executeTakeFirst();
 }
 
 export async function getSettings(db: DB, organisationId: string): Promise<Record<string, unknown>> {

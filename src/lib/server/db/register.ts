@@ -68,18 +68,33 @@ export function siteDto(s: Site & { areas?: number | string; machines?: number |
 }
 export type SiteDto = ReturnType<typeof siteDto>;
 
-export async function listSites(db: DB, organisationId: string, opts: { q?: string; archived?: Archived; page?: number; perPage?: number } = {}) {
+export async function listSites(
+	db: DB,
+	organisationId: string,
+	opts: { q?: string; archived?: Archived; page?: number; perPage?: number } = {}
+) {
 	const page = opts.page ?? 1;
 	const perPage = opts.perPage ?? 100;
 	let base = db.selectFrom('site').where('site.organisation_id', '=', organisationId);
 	base = whereArchived(base, 'site.archived_at', opts.archived ?? 'live');
-	if (opts.q) base = base.where((eb) => eb.or([eb('site.name', 'ilike', likePattern(opts.q!)), eb('site.code', 'ilike', likePattern(opts.q!))]));
+	if (opts.q)
+		base = base.where((eb) => eb.or([eb('site.name', 'ilike', likePattern(opts.q!)), eb('site.code', 'ilike', likePattern(opts.q!))]));
 	const [rows, count] = await Promise.all([
 		base
 			.selectAll('site')
 			.select((eb) => [
-				eb.selectFrom('area').select(eb.fn.countAll<string>().as('n')).whereRef('area.site_id', '=', 'site.id').where('area.archived_at', 'is', null).as('areas'),
-				eb.selectFrom('machine').select(eb.fn.countAll<string>().as('n')).whereRef('machine.site_id', '=', 'site.id').where('machine.archived_at', 'is', null).as('machines')
+				eb
+					.selectFrom('area')
+					.select(eb.fn.countAll<string>().as('n'))
+					.whereRef('area.site_id', '=', 'site.id')
+					.where('area.archived_at', 'is', null)
+					.as('areas'),
+				eb
+					.selectFrom('machine')
+					.select(eb.fn.countAll<string>().as('n'))
+					.whereRef('machine.site_id', '=', 'site.id')
+					.where('machine.archived_at', 'is', null)
+					.as('machines')
 			])
 			.orderBy('site.name')
 			.orderBy('site.id')
@@ -88,7 +103,12 @@ export async function listSites(db: DB, organisationId: string, opts: { q?: stri
 			.execute(),
 		base.select((eb) => eb.fn.countAll<string>().as('n')).executeTakeFirstOrThrow()
 	]);
-	return pageOf(rows.map((r) => siteDto({ ...r, areas: r.areas ?? 0, machines: r.machines ?? 0 })), Number(count.n), page, perPage);
+	return pageOf(
+		rows.map((r) => siteDto({ ...r, areas: r.areas ?? 0, machines: r.machines ?? 0 })),
+		Number(count.n),
+		page,
+		perPage
+	);
 }
 
 export async function getSite(db: DB, organisationId: string, id: string) {
@@ -162,8 +182,18 @@ export async function listAreas(
 			.selectAll('area')
 			.select('site.name as site_name')
 			.select((eb) => [
-				eb.selectFrom('supply_point').select(eb.fn.countAll<string>().as('n')).whereRef('supply_point.area_id', '=', 'area.id').where('supply_point.archived_at', 'is', null).as('supply_points'),
-				eb.selectFrom('machine').select(eb.fn.countAll<string>().as('n')).whereRef('machine.area_id', '=', 'area.id').where('machine.archived_at', 'is', null).as('machines')
+				eb
+					.selectFrom('supply_point')
+					.select(eb.fn.countAll<string>().as('n'))
+					.whereRef('supply_point.area_id', '=', 'area.id')
+					.where('supply_point.archived_at', 'is', null)
+					.as('supply_points'),
+				eb
+					.selectFrom('machine')
+					.select(eb.fn.countAll<string>().as('n'))
+					.whereRef('machine.area_id', '=', 'area.id')
+					.where('machine.archived_at', 'is', null)
+					.as('machines')
 			])
 			.orderBy('site.name')
 			.orderBy('area.name')
@@ -260,7 +290,10 @@ export async function listSupplyPoints(
 	base = whereArchived(base, 'supply_point.archived_at', opts.archived ?? 'live');
 	if (opts.areaId) base = base.where('supply_point.area_id', '=', opts.areaId);
 	if (opts.siteId) base = base.where('area.site_id', '=', opts.siteId);
-	if (opts.q) base = base.where((eb) => eb.or([eb('supply_point.name', 'ilike', likePattern(opts.q!)), eb('supply_point.tag', 'ilike', likePattern(opts.q!))]));
+	if (opts.q)
+		base = base.where((eb) =>
+			eb.or([eb('supply_point.name', 'ilike', likePattern(opts.q!)), eb('supply_point.tag', 'ilike', likePattern(opts.q!))])
+		);
 	const [rows, count] = await Promise.all([
 		base
 			.selectAll('supply_point')

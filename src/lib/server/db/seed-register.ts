@@ -58,43 +58,107 @@ const bearing = (position: BearingPosition, component: string, size: keyof typeo
 
 const MACHINES: DemoMachine[] = [
 	{
-		tag: 'RW-M01', name: 'Raw water pump 1 motor', kind: 'motor', area: 0, speed: 1485, mode: 'constant', signal: false, kw: 75, foundation: 'rigid',
+		tag: 'RW-M01',
+		name: 'Raw water pump 1 motor',
+		kind: 'motor',
+		area: 0,
+		speed: 1485,
+		mode: 'constant',
+		signal: false,
+		kw: 75,
+		foundation: 'rigid',
 		notes: 'TEFC motor, foot mounted. Fan cowl at the NDE: do not mount on it.',
 		bearings: [bearing('drive_end', 'motor', '6316'), bearing('non_drive_end', 'motor', '6313')]
 	},
 	{
-		tag: 'RW-P01', name: 'Raw water pump 1', kind: 'pump', area: 0, speed: 1485, mode: 'constant', signal: false, kw: 75, foundation: 'rigid',
+		tag: 'RW-P01',
+		name: 'Raw water pump 1',
+		kind: 'pump',
+		area: 0,
+		speed: 1485,
+		mode: 'constant',
+		signal: false,
+		kw: 75,
+		foundation: 'rigid',
 		notes: 'End-suction pump on a common baseplate with RW-M01.',
 		bearings: [bearing('drive_end', 'pump', '6311'), bearing('non_drive_end', 'pump', '6311')]
 	},
 	{
-		tag: 'RW-P02', name: 'Raw water pump 2', kind: 'pump', area: 0, speed: 1485, mode: 'constant', signal: false, kw: 75, foundation: 'rigid',
+		tag: 'RW-P02',
+		name: 'Raw water pump 2',
+		kind: 'pump',
+		area: 0,
+		speed: 1485,
+		mode: 'constant',
+		signal: false,
+		kw: 75,
+		foundation: 'rigid',
 		notes: 'Duty/standby with RW-P01.',
 		bearings: [bearing('drive_end', 'pump', '6311'), bearing('non_drive_end', 'pump', '6311')]
 	},
 	{
-		tag: 'BW-P01', name: 'Backwash pump', kind: 'pump', area: 0, speed: 2950, mode: 'variable', signal: true, kw: 30, foundation: 'rigid',
+		tag: 'BW-P01',
+		name: 'Backwash pump',
+		kind: 'pump',
+		area: 0,
+		speed: 2950,
+		mode: 'variable',
+		signal: true,
+		kw: 30,
+		foundation: 'rigid',
 		notes: 'Variable-speed drive; speed signal available from the drive panel.',
 		bearings: [bearing('drive_end', 'pump', '6309'), bearing('non_drive_end', 'pump', '6309')]
 	},
 	{
-		tag: 'AB-M01', name: 'Aeration blower 1 motor', kind: 'motor', area: 1, speed: 2975, mode: 'constant', signal: false, kw: 132, foundation: 'flexible',
+		tag: 'AB-M01',
+		name: 'Aeration blower 1 motor',
+		kind: 'motor',
+		area: 1,
+		speed: 2975,
+		mode: 'constant',
+		signal: false,
+		kw: 132,
+		foundation: 'flexible',
 		notes: 'On anti-vibration mounts with the blower skid.',
 		bearings: [bearing('drive_end', 'motor', '6316'), bearing('non_drive_end', 'motor', '6313')]
 	},
 	{
-		tag: 'AB-01', name: 'Aeration blower 1', kind: 'blower', area: 1, speed: 2975, mode: 'constant', signal: false, kw: 132, foundation: 'flexible',
+		tag: 'AB-01',
+		name: 'Aeration blower 1',
+		kind: 'blower',
+		area: 1,
+		speed: 2975,
+		mode: 'constant',
+		signal: false,
+		kw: 132,
+		foundation: 'flexible',
 		notes: 'Acoustic enclosure: the side panels come off for access.',
 		bearings: [bearing('drive_end', 'blower', '6313'), bearing('non_drive_end', 'blower', '6311')]
 	},
 	{
-		tag: 'OC-F01', name: 'Odour control extract fan', kind: 'fan', area: 1, speed: 1470, mode: 'constant', signal: false, kw: 11, foundation: 'flexible',
+		tag: 'OC-F01',
+		name: 'Odour control extract fan',
+		kind: 'fan',
+		area: 1,
+		speed: 1470,
+		mode: 'constant',
+		signal: false,
+		kw: 11,
+		foundation: 'flexible',
 		hazardous: 'Zone 2 (gas group IIA, T3) inside the sludge-cake extract duct room',
 		notes: 'Belt driven. Belt guard and fan cowl are sheet metal.',
 		bearings: [bearing('drive_end', 'fan', '6210'), bearing('non_drive_end', 'fan', '6208')]
 	},
 	{
-		tag: 'ST-P01', name: 'Sludge transfer pump', kind: 'pump', area: 1, speed: 240, mode: 'variable', signal: false, kw: 5.5, foundation: 'rigid',
+		tag: 'ST-P01',
+		name: 'Sludge transfer pump',
+		kind: 'pump',
+		area: 1,
+		speed: 240,
+		mode: 'variable',
+		signal: false,
+		kw: 5.5,
+		foundation: 'rigid',
 		notes: 'Progressive-cavity pump on a gearbox; low speed, no speed signal wired yet.',
 		bearings: [bearing('drive_end', 'gearbox output', '6206'), bearing('non_drive_end', 'gearbox input', '6205')]
 	}
@@ -113,31 +177,71 @@ const SUPPLY_POINTS: Array<{ area: 0 | 1; name: string; tag: string; note: strin
 ];
 
 export async function seedRegister(db: DB, organisationId: string, opts: { storage?: Storage } = {}) {
-	let site = await db.selectFrom('site').select('id').where('organisation_id', '=', organisationId).where('name', '=', DEMO_SITE).executeTakeFirst();
+	let site = await db
+		.selectFrom('site')
+		.select('id')
+		.where('organisation_id', '=', organisationId)
+		.where('name', '=', DEMO_SITE)
+		.executeTakeFirst();
 	if (!site) {
 		site = await db
 			.insertInto('site')
-			.values({ organisation_id: organisationId, name: DEMO_SITE, code: 'KMW', address: 'Mere Lane, Kestrel Mere (invented demo site)', notes: 'Demo data: an invented works.' })
+			.values({
+				organisation_id: organisationId,
+				name: DEMO_SITE,
+				code: 'KMW',
+				address: 'Mere Lane, Kestrel Mere (invented demo site)',
+				notes: 'Demo data: an invented works.'
+			})
 			.returning('id')
 			.executeTakeFirstOrThrow();
 	}
 	const areaIds: string[] = [];
 	for (const a of AREAS) {
-		let row = await db.selectFrom('area').select('id').where('organisation_id', '=', organisationId).where('site_id', '=', site.id).where('name', '=', a.name).executeTakeFirst();
-		if (!row) row = await db.insertInto('area').values({ organisation_id: organisationId, site_id: site.id, name: a.name, notes: a.notes }).returning('id').executeTakeFirstOrThrow();
+		let row = await db
+			.selectFrom('area')
+			.select('id')
+			.where('organisation_id', '=', organisationId)
+			.where('site_id', '=', site.id)
+			.where('name', '=', a.name)
+			.executeTakeFirst();
+		if (!row)
+			row = await db
+				.insertInto('area')
+				.values({ organisation_id: organisationId, site_id: site.id, name: a.name, notes: a.notes })
+				.returning('id')
+				.executeTakeFirstOrThrow();
 		areaIds.push(row.id);
 	}
 	for (const s of SUPPLY_POINTS) {
-		const exists = await db.selectFrom('supply_point').select('id').where('organisation_id', '=', organisationId).where('tag', '=', s.tag).executeTakeFirst();
+		const exists = await db
+			.selectFrom('supply_point')
+			.select('id')
+			.where('organisation_id', '=', organisationId)
+			.where('tag', '=', s.tag)
+			.executeTakeFirst();
 		if (!exists) {
 			await db
 				.insertInto('supply_point')
-				.values({ organisation_id: organisationId, area_id: areaIds[s.area]!, name: s.name, tag: s.tag, voltage_v: 24, max_current_a: s.maxA, location_note: s.note })
+				.values({
+					organisation_id: organisationId,
+					area_id: areaIds[s.area]!,
+					name: s.name,
+					tag: s.tag,
+					voltage_v: 24,
+					max_current_a: s.maxA,
+					location_note: s.note
+				})
 				.execute();
 		}
 	}
 	for (const m of MACHINES) {
-		let row = await db.selectFrom('machine').select('id').where('organisation_id', '=', organisationId).where('tag', '=', m.tag).executeTakeFirst();
+		let row = await db
+			.selectFrom('machine')
+			.select('id')
+			.where('organisation_id', '=', organisationId)
+			.where('tag', '=', m.tag)
+			.executeTakeFirst();
 		if (!row) {
 			row = await db
 				.insertInto('machine')
@@ -177,7 +281,12 @@ export async function seedRegister(db: DB, organisationId: string, opts: { stora
 			}
 		}
 		if (opts.storage) {
-			const has = await db.selectFrom('media').select('id').where('organisation_id', '=', organisationId).where('machine_id', '=', row.id).executeTakeFirst();
+			const has = await db
+				.selectFrom('media')
+				.select('id')
+				.where('organisation_id', '=', organisationId)
+				.where('machine_id', '=', row.id)
+				.executeTakeFirst();
 			if (!has) {
 				await storeUpload(db, opts.storage, DEFAULT_LIMITS, {
 					organisationId,
@@ -204,14 +313,21 @@ export async function sketch(m: { kind: MachineKind; tag: string; name: string }
 	const motor = (x: number, y: number, w: number, h: number) =>
 		parts.push(
 			`<rect x="${x}" y="${y}" width="${w}" height="${h}" rx="24" fill="${steel}" stroke="${dark}" stroke-width="6"/>`,
-			...Array.from({ length: 9 }, (_, i) => `<line x1="${x + 40 + i * ((w - 80) / 8)}" y1="${y + 12}" x2="${x + 40 + i * ((w - 80) / 8)}" y2="${y + h - 12}" stroke="${dark}" stroke-width="4" opacity="0.5"/>`),
+			...Array.from(
+				{ length: 9 },
+				(_, i) =>
+					`<line x1="${x + 40 + i * ((w - 80) / 8)}" y1="${y + 12}" x2="${x + 40 + i * ((w - 80) / 8)}" y2="${y + h - 12}" stroke="${dark}" stroke-width="4" opacity="0.5"/>`
+			),
 			`<rect x="${x - 90}" y="${y + 30}" width="90" height="${h - 60}" rx="12" fill="#8597a8" stroke="${dark}" stroke-width="5"/>`,
 			`<rect x="${x + w * 0.35}" y="${y - 70}" width="${w * 0.3}" height="70" fill="#8597a8" stroke="${dark}" stroke-width="5"/>`,
 			`<rect x="${x + 30}" y="${y + h}" width="60" height="60" fill="${dark}"/><rect x="${x + w - 90}" y="${y + h}" width="60" height="60" fill="${dark}"/>`
 		);
-	const shaft = (x1: number, x2: number, y: number) => parts.push(`<rect x="${x1}" y="${y - 18}" width="${x2 - x1}" height="36" fill="#a9b4bf" stroke="${dark}" stroke-width="4"/>`);
-	const coupling = (x: number, y: number) => parts.push(`<rect x="${x - 40}" y="${y - 60}" width="80" height="120" rx="10" fill="#c9a227" stroke="${dark}" stroke-width="5"/>`);
-	const housing = (x: number, y: number) => parts.push(`<rect x="${x - 55}" y="${y - 85}" width="110" height="170" rx="14" fill="#7d8f7a" stroke="${dark}" stroke-width="5"/>`);
+	const shaft = (x1: number, x2: number, y: number) =>
+		parts.push(`<rect x="${x1}" y="${y - 18}" width="${x2 - x1}" height="36" fill="#a9b4bf" stroke="${dark}" stroke-width="4"/>`);
+	const coupling = (x: number, y: number) =>
+		parts.push(`<rect x="${x - 40}" y="${y - 60}" width="80" height="120" rx="10" fill="#c9a227" stroke="${dark}" stroke-width="5"/>`);
+	const housing = (x: number, y: number) =>
+		parts.push(`<rect x="${x - 55}" y="${y - 85}" width="110" height="170" rx="14" fill="#7d8f7a" stroke="${dark}" stroke-width="5"/>`);
 	const ground = 860;
 	parts.push(`<rect x="60" y="${ground}" width="${W - 120}" height="40" fill="#9aa3ab"/>`);
 	if (m.kind === 'motor') {
@@ -223,11 +339,21 @@ export async function sketch(m: { kind: MachineKind; tag: string; name: string }
 		shaft(560, 810, 610);
 		coupling(730, 610);
 		housing(610, 610);
-		parts.push(`<circle cx="380" cy="600" r="190" fill="${steel}" stroke="${dark}" stroke-width="6"/>`, `<rect x="330" y="330" width="100" height="120" fill="${steel}" stroke="${dark}" stroke-width="6"/>`, `<rect x="150" y="560" width="80" height="80" fill="${steel}" stroke="${dark}" stroke-width="6"/>`);
+		parts.push(
+			`<circle cx="380" cy="600" r="190" fill="${steel}" stroke="${dark}" stroke-width="6"/>`,
+			`<rect x="330" y="330" width="100" height="120" fill="${steel}" stroke="${dark}" stroke-width="6"/>`,
+			`<rect x="150" y="560" width="80" height="80" fill="${steel}" stroke="${dark}" stroke-width="6"/>`
+		);
 	} else if (m.kind === 'fan' || m.kind === 'blower') {
 		motor(1000, 500, 440, 260);
-		parts.push(`<circle cx="460" cy="540" r="280" fill="${steel}" stroke="${dark}" stroke-width="6"/>`, `<rect x="180" y="200" width="280" height="120" fill="${steel}" stroke="${dark}" stroke-width="6"/>`);
-		if (m.kind === 'fan') parts.push(`<path d="M 760 450 L 1000 450 L 1000 770 L 760 770 Z" fill="none" stroke="${dark}" stroke-width="5" stroke-dasharray="20 12"/>`);
+		parts.push(
+			`<circle cx="460" cy="540" r="280" fill="${steel}" stroke="${dark}" stroke-width="6"/>`,
+			`<rect x="180" y="200" width="280" height="120" fill="${steel}" stroke="${dark}" stroke-width="6"/>`
+		);
+		if (m.kind === 'fan')
+			parts.push(
+				`<path d="M 760 450 L 1000 450 L 1000 770 L 760 770 Z" fill="none" stroke="${dark}" stroke-width="5" stroke-dasharray="20 12"/>`
+			);
 		shaft(740, 910, 630);
 		coupling(900, 630);
 		housing(790, 630);

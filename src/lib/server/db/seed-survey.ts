@@ -52,7 +52,8 @@ export async function seedSurvey(db: DB, organisationId: string) {
 		]
 	});
 	if (!survey) return null;
-	if (engineer) await transitionSurvey(db, { organisationId, surveyId: survey.id, name: 'start', actor: { userId: engineer.id, role: 'engineer' } });
+	if (engineer)
+		await transitionSurvey(db, { organisationId, surveyId: survey.id, name: 'start', actor: { userId: engineer.id, role: 'engineer' } });
 	else await db.updateTable('survey').set({ status: 'walking' }).where('id', '=', survey.id).execute();
 
 	const photo = await db

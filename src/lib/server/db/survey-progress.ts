@@ -65,7 +65,15 @@ export function machinesBySite(db: DB, organisationId: string) {
 	return db
 		.selectFrom('machine')
 		.leftJoin('area', 'area.id', 'machine.area_id')
-		.select(['machine.id', 'machine.site_id', 'machine.name', 'machine.tag', 'machine.kind', 'machine.hazardous_area', 'area.name as area_name'])
+		.select([
+			'machine.id',
+			'machine.site_id',
+			'machine.name',
+			'machine.tag',
+			'machine.kind',
+			'machine.hazardous_area',
+			'area.name as area_name'
+		])
 		.where('machine.organisation_id', '=', organisationId)
 		.where('machine.archived_at', 'is', null)
 		.orderBy('area.name')

@@ -45,7 +45,10 @@ export function list(db: DB, organisationId: string, opts: { includeArchived?: b
 	if (!opts.includeArchived) q = q.where('survey.archived_at', 'is', null);
 	if (opts.status) q = q.where('survey.status', '=', opts.status);
 	if (opts.siteId) q = q.where('survey.site_id', '=', opts.siteId);
-	return q.orderBy('survey.planned_date', (ob) => ob.desc().nullsLast()).orderBy('survey.created_at', 'desc').execute();
+	return q
+		.orderBy('survey.planned_date', (ob) => ob.desc().nullsLast())
+		.orderBy('survey.created_at', 'desc')
+		.execute();
 }
 
 export function get(db: DB, organisationId: string, id: string) {
@@ -97,7 +100,12 @@ export async function create(db: DB, organisationId: string, createdBy: string |
 	});
 }
 
-export async function update(db: DB, organisationId: string, id: string, input: Partial<Pick<SurveyInput, 'title' | 'plannedDate' | 'notes'>>) {
+export async function update(
+	db: DB,
+	organisationId: string,
+	id: string,
+	input: Partial<Pick<SurveyInput, 'title' | 'plannedDate' | 'notes'>>
+) {
 	const r = await db
 		.updateTable('survey')
 		.set({
@@ -134,11 +142,21 @@ async function writeMachines(trx: DB, organisationId: string, surveyId: string, 
 	}
 }
 
-async function writeAssignees(trx: DB, organisationId: string, surveyId: string, assignees: Array<{ userId: string; role: SurveyAssigneeRole }>) {
+async function writeAssignees(
+	trx: DB,
+	organisationId: string,
+	surveyId: string,
+	assignees: Array<{ userId: string; role: SurveyAssigneeRole }>
+) {
 	const ids = [...new Set(assignees.map((a) => a.userId))];
 	if (ids.length !== assignees.length) throw new SurveyRuleError('A person can be assigned once.');
 	if (ids.length) {
-		const found = await trx.selectFrom('member').select('user_id').where('organisation_id', '=', organisationId).where('user_id', 'in', ids).execute();
+		const found = await trx
+			.selectFrom('member')
+			.select('user_id')
+			.where('organisation_id', '=', organisationId)
+			.where('user_id', 'in', ids)
+			.execute();
 		if (found.length !== ids.length) throw new SurveyRuleError('Only members of the organisation can be assigned.');
 	}
 	await trx.deleteFrom('survey_assignee').where('survey_id', '=', surveyId).execute();
@@ -158,7 +176,10 @@ export async function replacePlan(
 	db: DB,
 	organisationId: string,
 	surveyId: string,
-	input: Pick<SurveyInput, 'title' | 'plannedDate' | 'notes'> & { machineIds: string[]; assignees: Array<{ userId: string; role: SurveyAssigneeRole }> }
+	input: Pick<SurveyInput, 'title' | 'plannedDate' | 'notes'> & {
+		machineIds: string[];
+		assignees: Array<{ userId: string; role: SurveyAssigneeRole }>;
+	}
 ) {
 	return db.transaction().execute(async (trx) => {
 		const s = await trx
@@ -184,16 +205,31 @@ export async function replacePlan(
 /** Replaces the machines to walk (all of the survey's site). False when the survey is not found. */
 export async function setMachines(db: DB, organisationId: string, surveyId: string, machineIds: string[]) {
 	return db.transaction().execute(async (trx) => {
-		const s = await trx.selectFrom('survey').select(['site_id']).where('organisation_id', '=', organisationId).where('id', '=', surveyId).executeTakeFirst();
+		const s = await trx
+			.selectFrom('survey')
+			.select(['site_id'])
+			.where('organisation_id', '=', organisationId)
+			.where('id', '=', surveyId)
+			.executeTakeFirst();
 		if (!s) return false;
 		await writeMachines(trx, organisationId, surveyId, s.site_id, machineIds);
 		return true;
 	});
 }
 
-export async function setAssignees(db: DB, organisationId: string, surveyId: string, assignees: Array<{ userId: string; role: SurveyAssigneeRole }>) {
+export async function setAssignees(
+	db: DB,
+	organisationId: string,
+	surveyId: string,
+	assignees: Array<{ userId: string; role: SurveyAssigneeRole }>
+) {
 	return db.transaction().execute(async (trx) => {
-		const s = await trx.selectFrom('survey').select('id').where('organisation_id', '=', organisationId).where('id', '=', surveyId).executeTakeFirst();
+		const s = await trx
+			.selectFrom('survey')
+			.select('id')
+			.where('organisation_id', '=', organisationId)
+			.where('id', '=', surveyId)
+			.executeTakeFirst();
 		if (!s) return false;
 		await writeAssignees(trx, organisationId, surveyId, assignees);
 		return true;
@@ -203,8 +239,18 @@ export async function setAssignees(db: DB, organisationId: string, surveyId: str
 export function listMachines(db: DB, organisationId: string, surveyId: string) {
 	return db
 		.selectFrom('survey_machine')
-		.innerJoin('machine', (j) => j.onRef('machine.id', '=', 'survey_machine.machine_id').onRef('machine.organisation_id', '=', 'survey_machine.organisation_id'))
-		.select(['machine.id', 'machine.name', 'machine.tag', 'machine.kind', 'machine.area_id', 'machine.hazardous_area', 'survey_machine.position'])
+		.innerJoin('machine', (j) =>
+			j.onRef('machine.id', '=', 'survey_machine.machine_id').onRef('machine.organisation_id', '=', 'survey_machine.organisation_id')
+		)
+		.select([
+			'machine.id',
+			'machine.name',
+			'machine.tag',
+			'machine.kind',
+			'machine.area_id',
+			'machine.hazardous_area',
+			'survey_machine.position'
+		])
 		.where('survey_machine.organisation_id', '=', organisationId)
 		.where('survey_machine.survey_id', '=', surveyId)
 		.orderBy('survey_machine.position')

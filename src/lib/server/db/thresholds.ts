@@ -49,12 +49,7 @@ function changes(before: Thresholds, after: Thresholds) {
  * Replaces the organisation's overrides with `input` (keys left out go back to their
  * defaults). Nothing is stored when any value is invalid.
  */
-export async function saveThresholds(
-	db: DB,
-	organisationId: string,
-	input: unknown,
-	actor: { userId: string }
-): Promise<SaveResult> {
+export async function saveThresholds(db: DB, organisationId: string, input: unknown, actor: { userId: string }): Promise<SaveResult> {
 	const v = validateThresholdOverrides(input);
 	if (!v.ok) return v;
 	return db.transaction().execute(async (trx) => {

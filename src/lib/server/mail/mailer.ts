@@ -63,7 +63,11 @@ export function createMailer(opts: { db: DB; smtpUrl?: string; from: string; pol
 			rows.rows.map(async (row) => {
 				try {
 					await transport.sendMail({ from: opts.from, to: row.to_address, subject: row.subject, text: row.body_text });
-					await opts.db.updateTable('mail_outbox').set({ status: 'sent', sent_at: new Date(), error: null }).where('id', '=', row.id).execute();
+					await opts.db
+						.updateTable('mail_outbox')
+						.set({ status: 'sent', sent_at: new Date(), error: null })
+						.where('id', '=', row.id)
+						.execute();
 				} catch (err) {
 					const message = err instanceof Error ? err.message : String(err);
 					const last = row.attempts >= MAX_ATTEMPTS;

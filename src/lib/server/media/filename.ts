@@ -25,7 +25,10 @@ function splitExtension(name: string): [string, string] {
  * (`upload.<ext>` when nothing is left).
  */
 export function cleanFilename(name: string, extension?: string): string {
-	const base = String(name ?? '').split(/[\\/]/).pop() ?? '';
+	const base =
+		String(name ?? '')
+			.split(/[\\/]/)
+			.pop() ?? '';
 	let clean = base
 		.normalize('NFC')
 		.replace(SPACING, ' ')
@@ -37,7 +40,11 @@ export function cleanFilename(name: string, extension?: string): string {
 	const chars = [...clean];
 	if (chars.length > MAX_FILENAME_LENGTH) {
 		const [stem, ext] = splitExtension(clean);
-		clean = [...stem].slice(0, MAX_FILENAME_LENGTH - [...ext].length).join('').trimEnd() + ext;
+		clean =
+			[...stem]
+				.slice(0, MAX_FILENAME_LENGTH - [...ext].length)
+				.join('')
+				.trimEnd() + ext;
 	}
 	if (!/[\p{L}\p{N}]/u.test(clean)) return extension ? `upload.${extension}` : 'upload';
 	return clean;

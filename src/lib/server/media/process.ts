@@ -82,14 +82,21 @@ function ascii(b: Uint8Array, from: number, to: number) {
 
 /** A plain-words name for a file we refuse, for the error message. */
 export function describe(b: Uint8Array): string {
-	const head = Buffer.from(b.subarray(0, 512)).toString('utf8').replace(/^\uFEFF/, '').trimStart().toLowerCase();
+	const head = Buffer.from(b.subarray(0, 512))
+		.toString('utf8')
+		.replace(/^\uFEFF/, '')
+		.trimStart()
+		.toLowerCase();
 	if (head.startsWith('<')) {
 		if (head.includes('<svg')) return 'an SVG drawing (vector images can carry scripts)';
 		if (head.includes('<html') || head.startsWith('<!doctype html')) return 'an HTML page';
 		return 'an XML or text file';
 	}
 	if (ascii(b, 0, 4) === 'GIF8') return 'a GIF image';
-	if (ascii(b, 4, 8) === 'ftyp') return /hei[cf]|mif1|msf1/.test(ascii(b, 8, 12)) ? 'a HEIC/HEIF photo (set the camera to save JPEG, "most compatible")' : 'a video or HEIF file';
+	if (ascii(b, 4, 8) === 'ftyp')
+		return /hei[cf]|mif1|msf1/.test(ascii(b, 8, 12))
+			? 'a HEIC/HEIF photo (set the camera to save JPEG, "most compatible")'
+			: 'a video or HEIF file';
 	if (ascii(b, 0, 2) === 'BM') return 'a BMP image';
 	if (ascii(b, 0, 4) === 'II*\u0000' || ascii(b, 0, 4) === 'MM\u0000*') return 'a TIFF image';
 	if (ascii(b, 0, 4) === 'PK\u0003\u0004') return 'a ZIP or office document';
@@ -149,7 +156,12 @@ export async function processMedia(bytes: Buffer, limits: MediaLimits = DEFAULT_
 			// inside the pipeline rather than in another full-size copy of the page.
 			return type === 'application/pdf' ? pipe.removeAlpha() : pipe;
 		};
-		const displayPipe = open().resize({ width: limits.displayMaxEdge, height: limits.displayMaxEdge, fit: 'inside', withoutEnlargement: true });
+		const displayPipe = open().resize({
+			width: limits.displayMaxEdge,
+			height: limits.displayMaxEdge,
+			fit: 'inside',
+			withoutEnlargement: true
+		});
 		if (displayFormat === 'jpeg') displayPipe.jpeg({ quality: 86, chromaSubsampling: '4:2:0' });
 		else if (displayFormat === 'webp') displayPipe.webp({ quality: 86 });
 		else displayPipe.png({ compressionLevel: 8 });

@@ -24,11 +24,19 @@ export function notFound(noun: keyof typeof NOUN) {
 
 /** Known errors become problem+json; anything else is rethrown (500 with a logged cause). */
 export function errorResponse(e: unknown): Response {
-	if (e instanceof RegisterError) return problem(e.status, e.message, { errors: e.errors, title: e.status === 400 ? 'Invalid input' : undefined });
+	if (e instanceof RegisterError)
+		return problem(e.status, e.message, { errors: e.errors, title: e.status === 400 ? 'Invalid input' : undefined });
 	if (e instanceof MediaError) return problem(e.status, e.message, { title: e.status === 422 ? 'File refused' : undefined });
 	throw e;
 }
 
-export async function audit(db: DB, v: Viewer, action: string, subjectType: keyof typeof NOUN, subjectId: string, data?: Record<string, unknown>) {
+export async function audit(
+	db: DB,
+	v: Viewer,
+	action: string,
+	subjectType: keyof typeof NOUN,
+	subjectId: string,
+	data?: Record<string, unknown>
+) {
 	await record(db, { organisationId: v.organisationId, actorUserId: v.userId, action, subjectType, subjectId, data });
 }

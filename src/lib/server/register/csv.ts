@@ -167,7 +167,16 @@ export function decode(bytes: Uint8Array): string {
 
 /** Parse and check a machine list. Reads the sites, areas and tags of the organisation. */
 export async function validateMachineCsv(db: DB, organisationId: string, text: string, opts: { defaultSiteId?: string | null } = {}) {
-	const report: ImportReport = { fileErrors: [], delimiter: ',', columns: [], ignoredColumns: [], rows: [], validCount: 0, errorCount: 0, newAreas: [] };
+	const report: ImportReport = {
+		fileErrors: [],
+		delimiter: ',',
+		columns: [],
+		ignoredColumns: [],
+		rows: [],
+		validCount: 0,
+		errorCount: 0,
+		newAreas: []
+	};
 	const planned: PlannedRow[] = [];
 	text = text.replace(/^\uFEFF/, '');
 	if (text.length > MAX_CSV_BYTES) {
@@ -175,7 +184,9 @@ export async function validateMachineCsv(db: DB, organisationId: string, text: s
 		return { report, planned };
 	}
 	if (text.trim() === '') {
-		report.fileErrors.push('The file is empty. Export the machine list from your spreadsheet as CSV with a header row (name, kind, …) and one machine per row.');
+		report.fileErrors.push(
+			'The file is empty. Export the machine list from your spreadsheet as CSV with a header row (name, kind, …) and one machine per row.'
+		);
 		return { report, planned };
 	}
 	report.delimiter = guessDelimiter(text);
@@ -190,13 +201,10 @@ export async function validateMachineCsv(db: DB, organisationId: string, text: s
 	});
 	report.columns = [...colIndex.keys()];
 	for (const required of ['name', 'kind'] as const) {
-		if (!colIndex.has(required)) report.fileErrors.push(`The header row has no "${required}" column. Columns Spotface reads: ${CSV_COLUMNS.join(', ')}.`);
+		if (!colIndex.has(required))
+			report.fileErrors.push(`The header row has no "${required}" column. Columns Spotface reads: ${CSV_COLUMNS.join(', ')}.`);
 	}
-	const sites = await db
-		.selectFrom('site')
-		.select(['id', 'name', 'archived_at'])
-		.where('organisation_id', '=', organisationId)
-		.execute();
+	const sites = await db.selectFrom('site').select(['id', 'name', 'archived_at']).where('organisation_id', '=', organisationId).execute();
 	const defaultSite = opts.defaultSiteId ? sites.find((s) => s.id === opts.defaultSiteId && !s.archived_at) : undefined;
 	if (opts.defaultSiteId && !defaultSite) report.fileErrors.push('The chosen site does not exist or is archived.');
 	if (!colIndex.has('site') && !defaultSite) report.fileErrors.push('Choose the site to import into, or add a "site" column.');
@@ -235,7 +243,10 @@ export async function validateMachineCsv(db: DB, organisationId: string, text: s
 		const errors: CellError[] = [];
 		for (const m of parseErrors.get(i + 1) ?? []) errors.push({ column: '(row)', message: m });
 		if (cells.length > header.length && cells.slice(header.length).some((c) => String(c).trim() !== '')) {
-			errors.push({ column: '(row)', message: `The row has ${cells.length} cells but the header has ${header.length}: is a "${report.delimiter}" inside a cell without quotes?` });
+			errors.push({
+				column: '(row)',
+				message: `The row has ${cells.length} cells but the header has ${header.length}: is a "${report.delimiter}" inside a cell without quotes?`
+			});
 		}
 
 		let siteId: string | null = null;
@@ -245,7 +256,8 @@ export async function validateMachineCsv(db: DB, organisationId: string, text: s
 			if (s) {
 				siteId = s.id;
 				siteName = s.name;
-			} else errors.push({ column: 'site', message: `No live site is named "${values.site}". Register the site first, or correct the name.` });
+			} else
+				errors.push({ column: 'site', message: `No live site is named "${values.site}". Register the site first, or correct the name.` });
 		} else if (defaultSite) {
 			siteId = defaultSite.id;
 			siteName = defaultSite.name;
@@ -324,12 +336,20 @@ export class ImportRefused extends Error {
  * Import a machine list. mode 'all' writes nothing unless every row is valid; 'valid' imports
  * the good rows and leaves the others out. One transaction either way.
  */
-export async function importMachineCsv(db: DB, organisationId: string, text: string, opts: { defaultSiteId?: string | null; mode: 'all' | 'valid' }) {
+export async function importMachineCsv(
+	db: DB,
+	organisationId: string,
+	text: string,
+	opts: { defaultSiteId?: string | null; mode: 'all' | 'valid' }
+) {
 	const v = await validateMachineCsv(db, organisationId, text, opts);
 	const { report, planned } = v;
 	if (report.fileErrors.length) throw new ImportRefused(report.fileErrors[0]!, report);
 	if (opts.mode === 'all' && report.errorCount > 0) {
-		throw new ImportRefused(`${report.errorCount} of ${report.rows.length} rows have problems: nothing was imported. Correct them, or import only the ${report.validCount} good rows.`, report);
+		throw new ImportRefused(
+			`${report.errorCount} of ${report.rows.length} rows have problems: nothing was imported. Correct them, or import only the ${report.validCount} good rows.`,
+			report
+		);
 	}
 	if (!planned.length) throw new ImportRefused('No row is valid: nothing to import.', report);
 	const ids = await db.transaction().execute(async (trx) => {
@@ -341,7 +361,11 @@ export async function importMachineCsv(db: DB, organisationId: string, text: str
 				const key = v.areaKey!(p.siteId, p.areaName);
 				areaId = areaIds.get(key) ?? null;
 				if (!areaId) {
-					const a = await trx.insertInto('area').values({ organisation_id: organisationId, site_id: p.siteId, name: p.areaName }).returning('id').executeTakeFirstOrThrow();
+					const a = await trx
+						.insertInto('area')
+						.values({ organisation_id: organisationId, site_id: p.siteId, name: p.areaName })
+						.returning('id')
+						.executeTakeFirstOrThrow();
 					areaId = a.id;
 					areaIds.set(key, areaId);
 				}

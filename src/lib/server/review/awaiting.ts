@@ -7,7 +7,10 @@ import { SURVEY_STATUS_LABEL, type SurveyStatus } from '../../survey/states';
 
 export async function awaitingSurveys(db: DB, organisationId: string, userId: string, role: Role) {
 	if (role === 'viewer') return [];
-	const statuses: SurveyStatus[] = role === 'technician' ? ['planned', 'walking', 'changes_requested'] : ['planned', 'walking', 'changes_requested', 'submitted', 'approved'];
+	const statuses: SurveyStatus[] =
+		role === 'technician'
+			? ['planned', 'walking', 'changes_requested']
+			: ['planned', 'walking', 'changes_requested', 'submitted', 'approved'];
 	const rows = await db
 		.selectFrom('survey')
 		.innerJoin('site', (j) => j.onRef('site.id', '=', 'survey.site_id').onRef('site.organisation_id', '=', 'survey.organisation_id'))
@@ -20,7 +23,13 @@ export async function awaitingSurveys(db: DB, organisationId: string, userId: st
 			'site.name as site_name',
 			'mine.role as assigned_as',
 			eb
-				.exists(eb.selectFrom('survey_assignee as e').select('e.user_id').whereRef('e.survey_id', '=', 'survey.id').where('e.role', '=', 'engineer'))
+				.exists(
+					eb
+						.selectFrom('survey_assignee as e')
+						.select('e.user_id')
+						.whereRef('e.survey_id', '=', 'survey.id')
+						.where('e.role', '=', 'engineer')
+				)
 				.as('has_engineer')
 		])
 		.where('survey.organisation_id', '=', organisationId)

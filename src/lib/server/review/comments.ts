@@ -148,7 +148,13 @@ export interface MailContext {
 }
 
 /** Creates a comment (or a reply), records its mentions, and e-mails each mentioned member once. */
-export async function createComment(db: DB, organisationId: string, author: CommentAuthor, input: NewComment, mail: MailContext): Promise<CommentView> {
+export async function createComment(
+	db: DB,
+	organisationId: string,
+	author: CommentAuthor,
+	input: NewComment,
+	mail: MailContext
+): Promise<CommentView> {
 	const survey = await db
 		.selectFrom('survey')
 		.select(['id', 'title'])
@@ -216,13 +222,26 @@ export async function createComment(db: DB, organisationId: string, author: Comm
 		}
 		return c;
 	});
-	await notifyMentions(db, organisationId, row.id, { author, surveyId: survey.id, surveyTitle: survey.title, body: input.body, target: { kind: target.kind, boardId: target.boardId } }, mail);
+	await notifyMentions(
+		db,
+		organisationId,
+		row.id,
+		{ author, surveyId: survey.id, surveyTitle: survey.title, body: input.body, target: { kind: target.kind, boardId: target.boardId } },
+		mail
+	);
 	const stored = await getComment(db, organisationId, row.id);
 	return view(stored!);
 }
 
 /** Changes the body of one's own comment; new mentions are told, earlier ones are not told again. */
-export async function editComment(db: DB, organisationId: string, author: CommentAuthor, id: string, body: string, mail: MailContext): Promise<CommentView> {
+export async function editComment(
+	db: DB,
+	organisationId: string,
+	author: CommentAuthor,
+	id: string,
+	body: string,
+	mail: MailContext
+): Promise<CommentView> {
 	const c = await getComment(db, organisationId, id);
 	if (!c) throw new CommentError(404, 'No such comment in your organisation.');
 	if (c.author_user_id !== author.userId) throw new CommentError(403, 'Only the author can change a comment.');
@@ -276,7 +295,13 @@ async function notifyMentions(
 	db: DB,
 	organisationId: string,
 	commentId: string,
-	c: { author: CommentAuthor; surveyId: string; surveyTitle: string; body: string; target: { kind: CommentTargetKind; boardId: string | null } },
+	c: {
+		author: CommentAuthor;
+		surveyId: string;
+		surveyTitle: string;
+		body: string;
+		target: { kind: CommentTargetKind; boardId: string | null };
+	},
 	mail: MailContext
 ) {
 	const claimed = await db

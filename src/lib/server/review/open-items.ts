@@ -58,7 +58,9 @@ export async function surveyOpenItems(db: DB, organisationId: string, surveyId: 
 				routesWithoutSupply: board.routes
 					.filter((r) => !r.supplyPointId && !r.exitLabel.trim())
 					.map((r) => ({ routeId: r.id, pointLabel: labelOf.get(r.pointId) ?? '?' })),
-				undecided: points.filter((p) => p.status === 'proposed' || p.status === 'flagged').map((p) => ({ pointId: p.id, label: p.label, status: p.status })),
+				undecided: points
+					.filter((p) => p.status === 'proposed' || p.status === 'flagged')
+					.map((p) => ({ pointId: p.id, label: p.label, status: p.status })),
 				rejected: points.filter((p) => p.status === 'rejected').map((p) => ({ pointId: p.id, label: p.label }))
 			});
 		} finally {

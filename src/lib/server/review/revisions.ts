@@ -125,7 +125,14 @@ export async function writeRevision(
 				{ role: 'engineer', userId: input.approvedBy, name: '' },
 				{ frozen: false, limits: { maxUpdateBytes: Number.MAX_SAFE_INTEGER, maxDocumentBytes: Number.MAX_SAFE_INTEGER } }
 			);
-			return r.ok ? [] : [`${b.title}: ${r.refusals.map((x) => x.reason).slice(0, 3).join(' ')}`];
+			return r.ok
+				? []
+				: [
+						`${b.title}: ${r.refusals
+							.map((x) => x.reason)
+							.slice(0, 3)
+							.join(' ')}`
+					];
 		});
 		if (invalid.length) throw new RevisionContentError(invalid);
 		const exceptions = boards.flatMap((b) => exceptionsOf(b.id, b.board));
@@ -314,7 +321,14 @@ export function comparableOf(data: RevisionData): ComparableRevision {
 					? { a: [b.scale_ax, b.scale_ay], b: [b.scale_bx, b.scale_by], lengthMm: b.scale_length_mm }
 					: null
 		})),
-		points: data.points.map((p) => ({ boardId: boardOf.get(p.revision_board_id)!, id: p.point_id, label: p.label, x: p.x, y: p.y, fields: p.fields })),
+		points: data.points.map((p) => ({
+			boardId: boardOf.get(p.revision_board_id)!,
+			id: p.point_id,
+			label: p.label,
+			x: p.x,
+			y: p.y,
+			fields: p.fields
+		})),
 		routes: data.routes.map((r) => ({
 			boardId: boardOf.get(r.revision_board_id)!,
 			id: r.route_id,

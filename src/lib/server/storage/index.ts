@@ -70,7 +70,8 @@ export function s3Storage(cfg: S3Config): Storage {
 		endpoint: cfg.endpoint || undefined,
 		region: cfg.region,
 		forcePathStyle: cfg.forcePathStyle,
-		credentials: cfg.accessKeyId && cfg.secretAccessKey ? { accessKeyId: cfg.accessKeyId, secretAccessKey: cfg.secretAccessKey } : undefined,
+		credentials:
+			cfg.accessKeyId && cfg.secretAccessKey ? { accessKeyId: cfg.accessKeyId, secretAccessKey: cfg.secretAccessKey } : undefined,
 		// Plain checksums only when the operation needs them: several S3-compatible stores
 		// do not understand the newer flexible-checksum trailers.
 		requestChecksumCalculation: 'WHEN_REQUIRED',
@@ -80,7 +81,9 @@ export function s3Storage(cfg: S3Config): Storage {
 	return {
 		kind: 's3',
 		async put(key, bytes, contentType) {
-			await client.send(new PutObjectCommand({ Bucket: cfg.bucket, Key: k(key), Body: bytes, ContentType: contentType, ContentLength: bytes.byteLength }));
+			await client.send(
+				new PutObjectCommand({ Bucket: cfg.bucket, Key: k(key), Body: bytes, ContentType: contentType, ContentLength: bytes.byteLength })
+			);
 		},
 		async get(key) {
 			try {

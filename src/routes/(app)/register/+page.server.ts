@@ -22,7 +22,13 @@ export const actions: Actions = {
 		if (!form.ok) return fail(400, { values: form.values, errors: form.errors });
 		const db = context().handle.db;
 		const site = await register.createSite(db, viewer.organisationId, form.data);
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'site.created', subjectType: 'site', subjectId: site.id });
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'site.created',
+			subjectType: 'site',
+			subjectId: site.id
+		});
 		redirect(303, `/register/sites/${site.id}`);
 	}
 };

@@ -15,7 +15,8 @@ function nextStep(s: { status: string; machines: number; machinesWithBoard: numb
 	if (s.status === 'changes_requested') return 'Changes requested: make them and submit again.';
 	if (s.machines === 0) return 'Pick the machines to walk.';
 	const missing = s.machines - s.machinesWithBoard;
-	if (missing > 0) return `${missing} of ${s.machines} ${s.machines === 1 ? 'machine has' : 'machines have'} no board yet: photograph and mark ${missing === 1 ? 'it' : 'them'}.`;
+	if (missing > 0)
+		return `${missing} of ${s.machines} ${s.machines === 1 ? 'machine has' : 'machines have'} no board yet: photograph and mark ${missing === 1 ? 'it' : 'them'}.`;
 	return s.status === 'planned' ? 'Every machine has a board: start the site walk.' : 'Finish the boards and submit for review.';
 }
 

@@ -16,7 +16,9 @@ export const GET: RequestHandler = async () => {
 	try {
 		const r = await Promise.race([
 			sql<{ now: Date }>`select now() as now`.execute(context().handle.db),
-			new Promise<never>((_, reject) => setTimeout(() => reject(new Error(`no answer within ${PING_TIMEOUT_MS} ms`)), PING_TIMEOUT_MS).unref())
+			new Promise<never>((_, reject) =>
+				setTimeout(() => reject(new Error(`no answer within ${PING_TIMEOUT_MS} ms`)), PING_TIMEOUT_MS).unref()
+			)
 		]);
 		database = { status: 'up', latencyMs: Date.now() - started, time: r.rows[0].now };
 	} catch (e) {

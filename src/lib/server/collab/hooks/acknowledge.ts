@@ -28,7 +28,13 @@ export function storageAway(): MessageAck {
 const overBudgetLogged = new WeakMap<CollabContext, Map<string, number>>();
 
 /** The answer to an update over a byte budget; logged once per burst, not per message. */
-export function overBudget(ctx: CollabContext, room: BoardRoom, member: RoomMember, whose: 'connection' | 'board', retryAfterMs: number): MessageAck {
+export function overBudget(
+	ctx: CollabContext,
+	room: BoardRoom,
+	member: RoomMember,
+	whose: 'connection' | 'board',
+	retryAfterMs: number
+): MessageAck {
 	let logged = overBudgetLogged.get(ctx);
 	if (!logged) overBudgetLogged.set(ctx, (logged = new Map()));
 	const now = Date.now();

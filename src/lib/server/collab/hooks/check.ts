@@ -20,12 +20,20 @@ import { overBudget, refused, stored } from './acknowledge';
  * The checks that need nothing but the message and the room, run at once; a Malformed throw
  * closes the socket before its next message is read. What passes goes on to `checkRights`.
  */
-export function checkUpdate(ctx: CollabContext, room: BoardRoom, member: RoomMember, update: Uint8Array): { ok: true; decoded: DecodedUpdate } | { ok: false; ack: MessageAck } {
+export function checkUpdate(
+	ctx: CollabContext,
+	room: BoardRoom,
+	member: RoomMember,
+	update: Uint8Array
+): { ok: true; decoded: DecodedUpdate } | { ok: false; ack: MessageAck } {
 	const { options, log } = ctx;
 	const size = update.byteLength;
 	if (size > options.maxUpdateBytes) {
 		log.warn(`[collab] refused an update from ${who(member.socket)}: ${size} bytes, over the ${options.maxUpdateBytes}-byte limit`);
-		return { ok: false, ack: refused(`This change is too large to save (${kib(size)}; the limit is ${kib(options.maxUpdateBytes)}). It was not saved.`) };
+		return {
+			ok: false,
+			ack: refused(`This change is too large to save (${kib(size)}; the limit is ${kib(options.maxUpdateBytes)}). It was not saved.`)
+		};
 	}
 	const budget = spend(member.bytes, room.bytes, size);
 	if (!budget.ok) return { ok: false, ack: overBudget(ctx, room, member, budget.who, budget.retryAfterMs) };
@@ -40,7 +48,10 @@ export function checkUpdate(ctx: CollabContext, room: BoardRoom, member: RoomMem
 	if (member.readOnly) return { ok: true, decoded };
 	if (!room.size.fits(room.doc, size, options.maxDocumentBytes)) {
 		log.warn(`[collab] refused an update from ${who(member.socket)}: the board would pass ${options.maxDocumentBytes} bytes`);
-		return { ok: false, ack: refused(`This board has reached its size limit (${kib(options.maxDocumentBytes)}). Your change was not saved.`) };
+		return {
+			ok: false,
+			ack: refused(`This board has reached its size limit (${kib(options.maxDocumentBytes)}). Your change was not saved.`)
+		};
 	}
 	return { ok: true, decoded };
 }
@@ -50,7 +61,13 @@ export function checkUpdate(ctx: CollabContext, room: BoardRoom, member: RoomMem
  * may be stored, else the reason in words for the person. Runs in the member's queue (after
  * its earlier updates were checked), since both depend on what came before.
  */
-export async function checkRights(ctx: CollabContext, room: BoardRoom, member: RoomMember, update: Uint8Array, decoded: DecodedUpdate): Promise<string | null> {
+export async function checkRights(
+	ctx: CollabContext,
+	room: BoardRoom,
+	member: RoomMember,
+	update: Uint8Array,
+	decoded: DecodedUpdate
+): Promise<string | null> {
 	if (member.readOnly) return null; // the store's own check refuses it with the reason
 	const refusal = checkPolicy(ctx, room, member, update);
 	if (refusal) {
@@ -87,7 +104,9 @@ function checkPolicy(ctx: CollabContext, room: BoardRoom, member: RoomMember, up
 
 /** Client ids belong to the member who introduced them: null when the update keeps to its own. */
 async function checkClientIds(ctx: CollabContext, room: BoardRoom, member: RoomMember, decoded: DecodedUpdate): Promise<string | null> {
-	const verdict = await ensureOwnership(ctx.db, room.owners, room.id, member.viewer.userId, structClientIds(decoded), (id) => Y.getState(room.doc.store, id));
+	const verdict = await ensureOwnership(ctx.db, room.owners, room.id, member.viewer.userId, structClientIds(decoded), (id) =>
+		Y.getState(room.doc.store, id)
+	);
 	if (verdict.ok) return null;
 	ctx.log.warn(`[collab] refused an update from ${who(member.socket)}: writes under client id ${verdict.clientId} of someone else`);
 	room.dropShadow();

@@ -27,13 +27,24 @@ function inOrder(member: RoomMember, task: () => Promise<void>): Promise<void> {
  * Everything that can be wrong with a message is found synchronously, before anything is stored
  * or sent: a malformed message closes the socket before its next message is read.
  */
-function handle(ctx: CollabContext, room: BoardRoom, member: RoomMember, bytes: Uint8Array, reply: Reply, failed: (e: unknown) => void): Promise<void> | void {
+function handle(
+	ctx: CollabContext,
+	room: BoardRoom,
+	member: RoomMember,
+	bytes: Uint8Array,
+	reply: Reply,
+	failed: (e: unknown) => void
+): Promise<void> | void {
 	const frame = parseFrame(bytes);
 	switch (frame.kind) {
 		case 'step1': {
 			// Each one costs an encoding of the board: the provider sends one per (re)join or rollback.
 			if (!member.syncRequests.take()) {
-				return closeSocket(ctx, member.socket, `more than ${SYNC_REQUESTS_PER_SECOND} sync requests per second (burst ${SYNC_REQUEST_BURST})`);
+				return closeSocket(
+					ctx,
+					member.socket,
+					`more than ${SYNC_REQUESTS_PER_SECOND} sync requests per second (burst ${SYNC_REQUEST_BURST})`
+				);
 			}
 			member.socket.emit(EVENT_MESSAGE, syncStep2Frame(room.doc, frame.stateVector));
 			return reply(stored());

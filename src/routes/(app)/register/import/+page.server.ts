@@ -25,9 +25,21 @@ export const actions: Actions = {
 		if (!site.success) return fail(400, { step: 'preview' as const, siteId: null, error: site.error.issues[0]!.message });
 		const siteId = site.data.siteId;
 		if (!(file instanceof File) || file.size === 0) {
-			return fail(400, { step: 'preview' as const, siteId, error: file instanceof File && file.name ? 'The file is empty. Export the machine list as CSV with a header row and one machine per row.' : 'Choose a CSV file.' });
+			return fail(400, {
+				step: 'preview' as const,
+				siteId,
+				error:
+					file instanceof File && file.name
+						? 'The file is empty. Export the machine list as CSV with a header row and one machine per row.'
+						: 'Choose a CSV file.'
+			});
 		}
-		if (file.size > MAX_CSV_BYTES) return fail(413, { step: 'preview' as const, siteId, error: `The file is larger than ${MAX_CSV_BYTES / 1024 / 1024} MB. Split it into smaller files.` });
+		if (file.size > MAX_CSV_BYTES)
+			return fail(413, {
+				step: 'preview' as const,
+				siteId,
+				error: `The file is larger than ${MAX_CSV_BYTES / 1024 / 1024} MB. Split it into smaller files.`
+			});
 		const text = decode(new Uint8Array(await file.arrayBuffer()));
 		const { report } = await validateMachineCsv(context().handle.db, viewer.organisationId, text, { defaultSiteId: siteId });
 		return { step: 'preview' as const, siteId, fileName: file.name, text, report };
@@ -43,10 +55,23 @@ export const actions: Actions = {
 		const db = context().handle.db;
 		try {
 			const r = await importMachineCsv(db, viewer.organisationId, text, { defaultSiteId: siteId, mode });
-			await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'machine.imported', data: { imported: r.imported, skipped: r.skipped } });
+			await record(db, {
+				organisationId: viewer.organisationId,
+				actorUserId: viewer.userId,
+				action: 'machine.imported',
+				data: { imported: r.imported, skipped: r.skipped }
+			});
 			return { step: 'done' as const, imported: r.imported, skipped: r.skipped, siteId };
 		} catch (e) {
-			if (e instanceof ImportRefused) return fail(422, { step: 'preview' as const, siteId, text, report: e.report, fileName: String(data.get('fileName') ?? ''), error: e.message });
+			if (e instanceof ImportRefused)
+				return fail(422, {
+					step: 'preview' as const,
+					siteId,
+					text,
+					report: e.report,
+					fileName: String(data.get('fileName') ?? ''),
+					error: e.message
+				});
 			throw e;
 		}
 	}

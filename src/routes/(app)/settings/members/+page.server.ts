@@ -39,7 +39,11 @@ export const actions: Actions = {
 		const { handle, mailer, config, throttle } = context();
 		const limit = await throttle.request('invite', { organisation: viewer.organisationId });
 		if (!limit.ok) {
-			return fail(429, { action: 'invite', values: form.values, errors: { _: 'Too many invitations from this organisation. Wait a while and try again.' } as FieldErrors });
+			return fail(429, {
+				action: 'invite',
+				values: form.values,
+				errors: { _: 'Too many invitations from this organisation. Wait a while and try again.' } as FieldErrors
+			});
 		}
 		try {
 			await invite(handle.db, mailer, config.origin, {
@@ -50,7 +54,8 @@ export const actions: Actions = {
 				role: form.data.role
 			});
 		} catch (e) {
-			if (e instanceof AccountError) return fail(e.status, { action: 'invite', values: form.values, errors: { [e.field ?? '_']: e.message } as FieldErrors });
+			if (e instanceof AccountError)
+				return fail(e.status, { action: 'invite', values: form.values, errors: { [e.field ?? '_']: e.message } as FieldErrors });
 			throw e;
 		}
 		return { action: 'invite', invited: form.data.email };
@@ -62,7 +67,13 @@ export const actions: Actions = {
 		const { id } = ref.data;
 		const db = context().handle.db;
 		if (!(await invitations.revoke(db, viewer.organisationId, id))) error(404, 'No such open invitation');
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'invitation.revoked', subjectType: 'invitation', subjectId: id });
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'invitation.revoked',
+			subjectType: 'invitation',
+			subjectId: id
+		});
 		return { action: 'revoke', revoked: true };
 	},
 	role: async ({ locals, request, url }) => {
@@ -81,7 +92,14 @@ export const actions: Actions = {
 			if (e instanceof members.LastAdminError) return fail(409, { action: 'role', id, errors: { role: e.message } as FieldErrors });
 			throw e;
 		}
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'member.role-changed', subjectType: 'member', subjectId: id, data: { role: form.data.role } });
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'member.role-changed',
+			subjectType: 'member',
+			subjectId: id,
+			data: { role: form.data.role }
+		});
 		return { action: 'role', id, saved: true };
 	},
 	remove: async ({ locals, request, url }) => {
@@ -97,7 +115,13 @@ export const actions: Actions = {
 			if (e instanceof members.LastAdminError) return fail(409, { action: 'remove', id, errors: { _: e.message } as FieldErrors });
 			throw e;
 		}
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'member.removed', subjectType: 'member', subjectId: id });
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'member.removed',
+			subjectType: 'member',
+			subjectId: id
+		});
 		return { action: 'remove', removed: true };
 	}
 };

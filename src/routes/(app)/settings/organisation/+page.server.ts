@@ -25,7 +25,12 @@ export const actions: Actions = {
 		if (!form.ok) return fail(400, { values: form.values, errors: form.errors });
 		const db = context().handle.db;
 		await organisations.update(db, viewer.organisationId, { name: form.data.name });
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'organisation.renamed', data: { name: form.data.name } });
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'organisation.renamed',
+			data: { name: form.data.name }
+		});
 		return { saved: true, values: form.values };
 	}
 };

@@ -30,7 +30,10 @@ export const actions: Actions = {
 		const viewer = requirePage(locals, 'thresholds.edit', url);
 		const form = await request.formData();
 		if (form.get('confirm') !== 'yes') {
-			return fail(400, { action: 'reset' as const, errors: { _: 'Confirm the reset first: nothing was changed.' } as Record<string, string> });
+			return fail(400, {
+				action: 'reset' as const,
+				errors: { _: 'Confirm the reset first: nothing was changed.' } as Record<string, string>
+			});
 		}
 		await resetThresholds(context().handle.db, viewer.organisationId, { userId: viewer.userId });
 		return { action: 'reset' as const, reset: true };

@@ -37,7 +37,7 @@ export const THRESHOLD_GROUPS: readonly ThresholdGroup[] = [
 	{
 		id: 'temperature',
 		title: 'Surface temperature',
-		intro: "Set this to the rated maximum of the sensor you fit.",
+		intro: 'Set this to the rated maximum of the sensor you fit.',
 		keys: ['maxSurfaceTempC']
 	},
 	{

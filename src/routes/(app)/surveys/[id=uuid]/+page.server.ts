@@ -24,8 +24,10 @@ import { boardAccess, isSettled } from '$lib/survey/board-access';
 import type { Role, SurveyStatus } from '$lib/server/db/types';
 import type { Actions, PageServerLoad } from './$types';
 
-const uploadFail = (status: number, error: string, machineId: string | null = null) => fail(status, { action: 'upload' as const, error, machineId });
-const planFail = (values: Record<string, unknown>, errors: Record<string, string>) => fail(400, { action: 'plan' as const, values, errors });
+const uploadFail = (status: number, error: string, machineId: string | null = null) =>
+	fail(status, { action: 'upload' as const, error, machineId });
+const planFail = (values: Record<string, unknown>, errors: Record<string, string>) =>
+	fail(400, { action: 'plan' as const, values, errors });
 
 export const load: PageServerLoad = async ({ locals, params, url }) => {
 	const viewer = requirePage(locals, 'survey.read', url);
@@ -65,7 +67,13 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 				title: b.title,
 				mediaId: b.media_id,
 				// Read-only for this reader (the board-access policy), shown on the button.
-				frozen: boardAccess({ role: viewer.role, surveyStatus: survey.status, frozen: b.frozen_at !== null, archived: survey.archived_at !== null, sessionLive: true }).readOnly
+				frozen: boardAccess({
+					role: viewer.role,
+					surveyStatus: survey.status,
+					frozen: b.frozen_at !== null,
+					archived: survey.archived_at !== null,
+					sessionLive: true
+				}).readOnly
 			}))
 	}));
 	const planLines: string[] = [];
@@ -109,7 +117,11 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		canPlan: canPlan && open,
 		canBoard: mayChangeBoards(viewer.role, survey),
 		canUpload: can(viewer.role, 'media.upload') && mayChangeBoards(viewer.role, survey),
-		transitions: availableTransitions(viewer.role, survey.status, survey.archived_at !== null).map((t) => ({ name: t.name, label: t.label, note: t.note })),
+		transitions: availableTransitions(viewer.role, survey.status, survey.archived_at !== null).map((t) => ({
+			name: t.name,
+			label: t.label,
+			note: t.note
+		})),
 		exceptions,
 		history: history.map((h) => ({
 			id: h.id,
@@ -134,7 +146,9 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 					machines: siteMachines
 						.filter((m) => m.site_id === survey.site_id)
 						.map((m) => ({ id: m.id, name: m.name, tag: m.tag, kind: m.kind, area: m.area_name, hazardous: m.hazardous_area })),
-					engineers: people.filter((p) => p.role === 'engineer' || p.role === 'admin').map((p) => ({ id: p.user_id, name: p.name, role: p.role })),
+					engineers: people
+						.filter((p) => p.role === 'engineer' || p.role === 'admin')
+						.map((p) => ({ id: p.user_id, name: p.name, role: p.role })),
 					technicians: people.filter((p) => p.role !== 'viewer').map((p) => ({ id: p.user_id, name: p.name, role: p.role }))
 				}
 			: null
@@ -156,12 +170,17 @@ export const actions: Actions = {
 	board: async ({ locals, params, request, url }) => {
 		const viewer = requirePage(locals, 'board.write', url);
 		const fd = await request.formData();
-		const parsed = boardCreateSchema.safeParse({ machineId: fd.get('machineId') ?? '', mediaId: fd.get('mediaId') ?? '', title: fd.get('title') ?? '' });
+		const parsed = boardCreateSchema.safeParse({
+			machineId: fd.get('machineId') ?? '',
+			mediaId: fd.get('mediaId') ?? '',
+			title: fd.get('title') ?? ''
+		});
 		if (!parsed.success) return fail(400, { action: 'board' as const, error: parsed.error.issues[0]?.message ?? 'Choose a photo.' });
 		const db = context().handle.db;
 		const survey = await surveys.get(db, viewer.organisationId, params.id);
 		if (!survey) error(404, 'No such survey in your organisation.');
-		if (!mayChangeBoards(viewer.role, survey)) return fail(409, { action: 'board' as const, error: boardsClosedReason(viewer.role, survey) });
+		if (!mayChangeBoards(viewer.role, survey))
+			return fail(409, { action: 'board' as const, error: boardsClosedReason(viewer.role, survey) });
 		const title = parsed.data.title || (await defaultTitle(viewer.organisationId, parsed.data.mediaId));
 		let created: { id: string } | null;
 		try {
@@ -171,7 +190,14 @@ export const actions: Actions = {
 			throw e;
 		}
 		if (!created) error(404, 'No such survey in your organisation.');
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'board.created', subjectType: 'board', subjectId: created.id, data: { surveyId: survey.id } });
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'board.created',
+			subjectType: 'board',
+			subjectId: created.id,
+			data: { surveyId: survey.id }
+		});
 		redirect(303, `/surveys/${survey.id}/boards/${created.id}`);
 	},
 
@@ -187,7 +213,11 @@ export const actions: Actions = {
 		} catch {
 			return uploadFail(400, 'The upload could not be read (was it cut short?). Try again.');
 		}
-		const fields = uploadFields.safeParse({ machineId: fd.get('machineId') ?? '', kind: fd.get('kind') ?? 'photo', caption: fd.get('caption') ?? '' });
+		const fields = uploadFields.safeParse({
+			machineId: fd.get('machineId') ?? '',
+			kind: fd.get('kind') ?? 'photo',
+			caption: fd.get('caption') ?? ''
+		});
 		if (!fields.success) return uploadFail(400, fields.error.issues[0]?.message ?? 'Check the fields.');
 		const file = fd.get('file');
 		if (!(file instanceof File) || file.size === 0) return uploadFail(400, 'Choose or take a photo first.', fields.data.machineId);
@@ -209,8 +239,16 @@ export const actions: Actions = {
 			if (e instanceof MediaError || e instanceof RegisterError) return uploadFail(e.status, e.message, fields.data.machineId);
 			throw e;
 		}
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'media.uploaded', subjectType: 'media', subjectId: row.id, data: { machineId: fields.data.machineId, surveyId: survey.id } });
-		if (!can(viewer.role, 'board.write') || fd.get('open') !== '1') return { action: 'upload' as const, uploaded: row.id, machineId: fields.data.machineId, error: null };
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'media.uploaded',
+			subjectType: 'media',
+			subjectId: row.id,
+			data: { machineId: fields.data.machineId, surveyId: survey.id }
+		});
+		if (!can(viewer.role, 'board.write') || fd.get('open') !== '1')
+			return { action: 'upload' as const, uploaded: row.id, machineId: fields.data.machineId, error: null };
 		const title = row.caption || (await defaultTitle(viewer.organisationId, row.id));
 		let created: { id: string } | null;
 		try {
@@ -259,7 +297,13 @@ export const actions: Actions = {
 			if (e instanceof surveys.SurveyRuleError) return planFail(form.values, { machineIds: e.message });
 			throw e;
 		}
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'survey.plan-changed', subjectType: 'survey', subjectId: survey.id });
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'survey.plan-changed',
+			subjectType: 'survey',
+			subjectId: survey.id
+		});
 		return { action: 'plan' as const, saved: true };
 	},
 
@@ -268,7 +312,8 @@ export const actions: Actions = {
 		const fd = await request.formData();
 		const name = fd.get('name');
 		const note = String(fd.get('note') ?? '');
-		if (!isTransitionName(name)) return fail(400, { action: 'transition' as const, error: 'Choose what to do with the survey.', name: null, note });
+		if (!isTransitionName(name))
+			return fail(400, { action: 'transition' as const, error: 'Choose what to do with the survey.', name: null, note });
 		const db = context().handle.db;
 		try {
 			await transitionSurvey(db, {
@@ -282,7 +327,13 @@ export const actions: Actions = {
 		} catch (e) {
 			if (e instanceof WorkflowError) {
 				if (e.status === 404) error(404, e.message);
-				return fail(e.status, { action: 'transition' as const, error: e.message, name, note, needsConfirmation: Boolean(e.exceptions?.length) });
+				return fail(e.status, {
+					action: 'transition' as const,
+					error: e.message,
+					name,
+					note,
+					needsConfirmation: Boolean(e.exceptions?.length)
+				});
 			}
 			throw e;
 		}
@@ -292,16 +343,24 @@ export const actions: Actions = {
 
 /** New boards and photos follow the board-access policy: not while a technician's survey is under review. */
 function mayChangeBoards(role: Role, survey: { status: SurveyStatus; archived_at: unknown }) {
-	return !boardAccess({ role, surveyStatus: survey.status, frozen: false, archived: survey.archived_at !== null, sessionLive: true }).readOnly;
+	return !boardAccess({ role, surveyStatus: survey.status, frozen: false, archived: survey.archived_at !== null, sessionLive: true })
+		.readOnly;
 }
 function boardsClosedReason(role: Role, survey: { status: SurveyStatus; archived_at: unknown }) {
-	return boardAccess({ role, surveyStatus: survey.status, frozen: false, archived: survey.archived_at !== null, sessionLive: true }).reason ?? '';
+	return (
+		boardAccess({ role, surveyStatus: survey.status, frozen: false, archived: survey.archived_at !== null, sessionLive: true }).reason ?? ''
+	);
 }
 
 async function defaultTitle(organisationId: string, mediaId: string | null): Promise<string> {
 	if (!mediaId) return 'Sketch board';
 	const db = context().handle.db;
-	const m = await db.selectFrom('media').select(['kind', 'caption', 'created_at']).where('organisation_id', '=', organisationId).where('id', '=', mediaId).executeTakeFirst();
+	const m = await db
+		.selectFrom('media')
+		.select(['kind', 'caption', 'created_at'])
+		.where('organisation_id', '=', organisationId)
+		.where('id', '=', mediaId)
+		.executeTakeFirst();
 	if (!m) return 'Board';
 	if (m.caption) return m.caption;
 	return `${m.kind === 'drawing' ? 'Drawing' : 'Photo'} of ${new Date(m.created_at).toISOString().slice(0, 10)}`;

@@ -22,8 +22,18 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 	]);
 	return {
 		sites: sites.items.map((s) => ({ id: s.id, name: s.name })),
-		machines: machines.map((m) => ({ id: m.id, siteId: m.site_id, name: m.name, tag: m.tag, kind: m.kind, area: m.area_name, hazardous: m.hazardous_area })),
-		engineers: people.filter((p) => p.role === 'engineer' || p.role === 'admin').map((p) => ({ id: p.user_id, name: p.name, role: p.role })),
+		machines: machines.map((m) => ({
+			id: m.id,
+			siteId: m.site_id,
+			name: m.name,
+			tag: m.tag,
+			kind: m.kind,
+			area: m.area_name,
+			hazardous: m.hazardous_area
+		})),
+		engineers: people
+			.filter((p) => p.role === 'engineer' || p.role === 'admin')
+			.map((p) => ({ id: p.user_id, name: p.name, role: p.role })),
 		technicians: people.filter((p) => p.role !== 'viewer').map((p) => ({ id: p.user_id, name: p.name, role: p.role })),
 		me: viewer.userId,
 		presetSite: url.searchParams.get('site') ?? ''

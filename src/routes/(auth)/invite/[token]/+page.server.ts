@@ -35,7 +35,10 @@ export const actions: Actions = {
 			const gate = await throttle.beginSignIn(inv.email, address);
 			if (!gate.ok) {
 				event.setHeaders({ 'retry-after': String(gate.retryAfterSec) });
-				return fail(429, { values: form.values, errors: { _: `Too many wrong passwords from here. Wait ${gate.retryAfterSec} seconds and try again.` } as FieldErrors });
+				return fail(429, {
+					values: form.values,
+					errors: { _: `Too many wrong passwords from here. Wait ${gate.retryAfterSec} seconds and try again.` } as FieldErrors
+				});
 			}
 		}
 		let who;

@@ -51,14 +51,26 @@ export const actions: Actions = {
 			if (e instanceof register.RegisterError) return fail(e.status, { values: form.values, errors: { [e.field ?? 'name']: e.message } });
 			throw e;
 		}
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'machine.updated', subjectType: 'machine', subjectId: params.id });
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'machine.updated',
+			subjectType: 'machine',
+			subjectId: params.id
+		});
 		return { saved: true };
 	},
 	archive: async ({ locals, url, params }) => {
 		const viewer = requirePage(locals, 'register.write', url);
 		const db = context().handle.db;
 		if (!(await machines.archiveMachine(db, viewer.organisationId, params.id))) error(404, 'No such machine in your organisation.');
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'machine.archived', subjectType: 'machine', subjectId: params.id });
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'machine.archived',
+			subjectType: 'machine',
+			subjectId: params.id
+		});
 		redirect(303, `/register/machines/${params.id}`);
 	},
 	restore: async ({ locals, url, params }) => {
@@ -70,7 +82,13 @@ export const actions: Actions = {
 			if (e instanceof register.RegisterError) return fail(e.status, { errors: { _: e.message } });
 			throw e;
 		}
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'machine.restored', subjectType: 'machine', subjectId: params.id });
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'machine.restored',
+			subjectType: 'machine',
+			subjectId: params.id
+		});
 		redirect(303, `/register/machines/${params.id}`);
 	}
 };

@@ -35,7 +35,13 @@ export const actions: Actions = {
 			if (e instanceof register.RegisterError) return fail(e.status, { values: form.values, errors: { [e.field ?? 'name']: e.message } });
 			throw e;
 		}
-		await record(db, { organisationId: viewer.organisationId, actorUserId: viewer.userId, action: 'machine.created', subjectType: 'machine', subjectId: id });
+		await record(db, {
+			organisationId: viewer.organisationId,
+			actorUserId: viewer.userId,
+			action: 'machine.created',
+			subjectType: 'machine',
+			subjectId: id
+		});
 		redirect(303, `/register/machines/${id}?created=1`);
 	}
 };

@@ -41,7 +41,8 @@ export const actions: Actions = {
 	},
 	archive: async ({ locals, url, params }) => {
 		const viewer = requirePage(locals, 'register.write', url);
-		if (!(await register.archiveSite(context().handle.db, viewer.organisationId, params.id))) error(404, 'No such site in your organisation.');
+		if (!(await register.archiveSite(context().handle.db, viewer.organisationId, params.id)))
+			error(404, 'No such site in your organisation.');
 		await audit(locals, 'site.archived', 'site', params.id);
 		redirect(303, '/register');
 	},
@@ -55,7 +56,8 @@ export const actions: Actions = {
 			const a = await register.createArea(context().handle.db, viewer.organisationId, form.data);
 			await audit(locals, 'area.created', 'area', a.id);
 		} catch (e) {
-			if (e instanceof register.RegisterError) return fail(e.status, { action: 'addArea', values: form.values, errors: { name: e.message } });
+			if (e instanceof register.RegisterError)
+				return fail(e.status, { action: 'addArea', values: form.values, errors: { name: e.message } });
 			throw e;
 		}
 		return { action: 'addArea', saved: true };
@@ -77,7 +79,8 @@ export const actions: Actions = {
 			const p = await register.createSupplyPoint(context().handle.db, viewer.organisationId, form.data);
 			await audit(locals, 'supply_point.created', 'supply_point', p.id);
 		} catch (e) {
-			if (e instanceof register.RegisterError) return fail(e.status, { action: 'addSupplyPoint', values: form.values, errors: { areaId: e.message } });
+			if (e instanceof register.RegisterError)
+				return fail(e.status, { action: 'addSupplyPoint', values: form.values, errors: { areaId: e.message } });
 			throw e;
 		}
 		return { action: 'addSupplyPoint', saved: true };

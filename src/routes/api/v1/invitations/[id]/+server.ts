@@ -21,6 +21,12 @@ export const DELETE: RequestHandler = async ({ locals, params }) => {
 	if (!isUuid(params.id) || !(await invitations.revoke(db, v.organisationId, params.id))) {
 		return problem(404, 'No such open invitation in your organisation.');
 	}
-	await record(db, { organisationId: v.organisationId, actorUserId: v.userId, action: 'invitation.revoked', subjectType: 'invitation', subjectId: params.id });
+	await record(db, {
+		organisationId: v.organisationId,
+		actorUserId: v.userId,
+		action: 'invitation.revoked',
+		subjectType: 'invitation',
+		subjectId: params.id
+	});
 	return new Response(null, { status: 204 });
 };

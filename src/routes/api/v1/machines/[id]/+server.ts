@@ -32,7 +32,10 @@ export const PATCH: RequestHandler = async ({ locals, params, request }) => {
 	if (!can(v.role, 'register.write')) {
 		const outside = keys.filter((k) => !(MACHINE_FIELD_KEYS as string[]).includes(k));
 		if (outside.length) {
-			return problem(403, `Your role (${v.role}) may change a machine's field data only (speed, power, foundation, hazardous area, notes), not: ${outside.join(', ')}.`);
+			return problem(
+				403,
+				`Your role (${v.role}) may change a machine's field data only (speed, power, foundation, hazardous area, notes), not: ${outside.join(', ')}.`
+			);
 		}
 	}
 	const db = context().handle.db;

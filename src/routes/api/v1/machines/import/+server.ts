@@ -9,7 +9,9 @@ import type { RequestHandler } from './$types';
 
 const query = z.object({
 	siteId: z.uuid({ error: 'siteId must be a site id.' }).optional(),
-	mode: z.enum(['all', 'valid'], { error: 'mode is "all" (nothing unless every row is valid) or "valid" (the good rows only).' }).default('all'),
+	mode: z
+		.enum(['all', 'valid'], { error: 'mode is "all" (nothing unless every row is valid) or "valid" (the good rows only).' })
+		.default('all'),
 	dryRun: z.enum(['true', 'false', '1', '0']).default('false')
 });
 
@@ -23,7 +25,8 @@ export const POST: RequestHandler = async ({ locals, request, url }) => {
 	const q = query.safeParse(queryObject(url));
 	if (!q.success) return problem(400, q.error.issues[0]!.message);
 	const bytes = new Uint8Array(await request.arrayBuffer());
-	if (bytes.length > MAX_CSV_BYTES) return problem(413, `The file is larger than ${MAX_CSV_BYTES / 1024 / 1024} MB. Split it into smaller files.`);
+	if (bytes.length > MAX_CSV_BYTES)
+		return problem(413, `The file is larger than ${MAX_CSV_BYTES / 1024 / 1024} MB. Split it into smaller files.`);
 	const text = decode(bytes);
 	const db = context().handle.db;
 	if (q.data.dryRun === 'true' || q.data.dryRun === '1') {
@@ -32,14 +35,22 @@ export const POST: RequestHandler = async ({ locals, request, url }) => {
 	}
 	try {
 		const r = await importMachineCsv(db, v.organisationId, text, { defaultSiteId: q.data.siteId, mode: q.data.mode });
-		await record(db, { organisationId: v.organisationId, actorUserId: v.userId, action: 'machine.imported', data: { imported: r.imported, skipped: r.skipped } });
+		await record(db, {
+			organisationId: v.organisationId,
+			actorUserId: v.userId,
+			action: 'machine.imported',
+			data: { imported: r.imported, skipped: r.skipped }
+		});
 		return json({ imported: r.imported, skipped: r.skipped, ids: r.ids, report: r.report }, { status: 201 });
 	} catch (e) {
 		if (e instanceof ImportRefused) {
-			return new Response(JSON.stringify({ type: 'about:blank', title: 'Import refused', status: 422, detail: e.message, report: e.report }), {
-				status: 422,
-				headers: { 'content-type': 'application/problem+json' }
-			});
+			return new Response(
+				JSON.stringify({ type: 'about:blank', title: 'Import refused', status: 422, detail: e.message, report: e.report }),
+				{
+					status: 422,
+					headers: { 'content-type': 'application/problem+json' }
+				}
+			);
 		}
 		throw e;
 	}

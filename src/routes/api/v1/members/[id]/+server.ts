@@ -29,7 +29,14 @@ export const PATCH: RequestHandler = async ({ locals, params, request }) => {
 		if (e instanceof members.LastAdminError) return problem(409, e.message);
 		throw e;
 	}
-	await record(db, { organisationId: v.organisationId, actorUserId: v.userId, action: 'member.role-changed', subjectType: 'member', subjectId: params.id, data: body.data });
+	await record(db, {
+		organisationId: v.organisationId,
+		actorUserId: v.userId,
+		action: 'member.role-changed',
+		subjectType: 'member',
+		subjectId: params.id,
+		data: body.data
+	});
 	const m = await members.get(db, v.organisationId, params.id);
 	return json({ id: m!.id, name: m!.name, email: m!.email, role: m!.role });
 };
@@ -46,6 +53,12 @@ export const DELETE: RequestHandler = async ({ locals, params }) => {
 		if (e instanceof members.LastAdminError) return problem(409, e.message);
 		throw e;
 	}
-	await record(db, { organisationId: v.organisationId, actorUserId: v.userId, action: 'member.removed', subjectType: 'member', subjectId: params.id });
+	await record(db, {
+		organisationId: v.organisationId,
+		actorUserId: v.userId,
+		action: 'member.removed',
+		subjectType: 'member',
+		subjectId: params.id
+	});
 	return new Response(null, { status: 204 });
 };

@@ -75,7 +75,10 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		revisions,
 		compare:
 			compareNumber && revisions.includes(compareNumber) && comparePoints
-				? { number: compareNumber, points: comparePoints.map((p) => ({ id: p.id, label: p.label, x: Number(p.x), y: Number(p.y), status: p.status })) }
+				? {
+						number: compareNumber,
+						points: comparePoints.map((p) => ({ id: p.id, label: p.label, x: Number(p.x), y: Number(p.y), status: p.status }))
+					}
 				: null
 	};
 };

@@ -14,7 +14,10 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 	const db = context().handle.db;
 	const survey = await surveys.get(db, viewer.organisationId, params.id);
 	if (!survey) error(404, 'No such survey in your organisation.');
-	const [data, all] = await Promise.all([getRevision(db, viewer.organisationId, survey.id, n.data), listRevisions(db, viewer.organisationId, survey.id)]);
+	const [data, all] = await Promise.all([
+		getRevision(db, viewer.organisationId, survey.id, n.data),
+		listRevisions(db, viewer.organisationId, survey.id)
+	]);
 	if (!data) error(404, 'No such revision of this survey.');
 	const r = data.revision;
 	return {
@@ -50,7 +53,9 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 					distance: p.distance_used_mm,
 					distanceSource: p.distance_source,
 					worst: p.worst,
-					findings: (p.findings as Array<{ severity: string; message: string }>).filter((f) => f.severity !== 'pass').map((f) => ({ severity: f.severity, message: f.message }))
+					findings: (p.findings as Array<{ severity: string; message: string }>)
+						.filter((f) => f.severity !== 'pass')
+						.map((f) => ({ severity: f.severity, message: f.message }))
 				})),
 			routes: data.routes
 				.filter((x) => x.revision_board_id === b.id)

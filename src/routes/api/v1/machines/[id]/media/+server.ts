@@ -34,7 +34,10 @@ export const POST: RequestHandler = async ({ locals, params, request }) => {
 	const { storage, limits } = mediaContext();
 	const length = Number(request.headers.get('content-length') ?? 0);
 	if (length > limits.maxBytes + 256 * 1024) {
-		return problem(413, `The upload is ${(length / 1024 / 1024).toFixed(1)} MB; the limit is ${(limits.maxBytes / 1024 / 1024).toFixed(0)} MB per file.`);
+		return problem(
+			413,
+			`The upload is ${(length / 1024 / 1024).toFixed(1)} MB; the limit is ${(limits.maxBytes / 1024 / 1024).toFixed(0)} MB per file.`
+		);
 	}
 	if (!(request.headers.get('content-type') ?? '').includes('multipart/form-data')) {
 		return problem(415, 'Send the file as multipart/form-data in a field named "file".');
@@ -49,7 +52,9 @@ export const POST: RequestHandler = async ({ locals, params, request }) => {
 	if (!(file instanceof File)) return problem(400, 'Choose a file to upload.', { errors: { file: ['Choose a file to upload.'] } });
 	const parsed = fields.safeParse({ kind: form.get('kind'), caption: form.get('caption') });
 	if (!parsed.success) {
-		return problem(400, 'Some fields are invalid.', { errors: Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), [i.message]])) });
+		return problem(400, 'Some fields are invalid.', {
+			errors: Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), [i.message]]))
+		});
 	}
 	const db = context().handle.db;
 	try {

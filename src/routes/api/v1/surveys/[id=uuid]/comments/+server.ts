@@ -25,7 +25,13 @@ export const POST: RequestHandler = async ({ locals, params, request }) => {
 	if (!body.ok) return body.response;
 	const { db, mailer, config } = { db: context().handle.db, mailer: context().mailer, config: context().config };
 	try {
-		const c = await createComment(db, v.organisationId, { userId: v.userId, name: v.name }, { surveyId: params.id, ...body.data }, { mailer, origin: config.origin });
+		const c = await createComment(
+			db,
+			v.organisationId,
+			{ userId: v.userId, name: v.name },
+			{ surveyId: params.id, ...body.data },
+			{ mailer, origin: config.origin }
+		);
 		return json(c, { status: 201, headers: { location: `/api/v1/comments/${c.id}` } });
 	} catch (e) {
 		return reviewError(e);
