@@ -27,6 +27,12 @@ export default defineConfig(
 		}
 	},
 	{
+		// Migrations take Kysely<any> on purpose: they must not depend on today's table types, and a landed
+		// migration is never edited.
+		files: ['migrations/**'],
+		rules: { '@typescript-eslint/no-explicit-any': 'off' }
+	},
+	{
 		files: ['**/*.svelte', '**/*.svelte.ts', '**/*.svelte.js'],
 		languageOptions: {
 			parserOptions: { extraFileExtensions: ['.svelte'], parser: ts.parser, svelteConfig }

@@ -75,7 +75,9 @@ export function startCluster({ dir, port, dbName, log = console.log }) {
 				const mode = execFileSync('stat', ['-c', '%a', p], { encoding: 'utf8' }).trim();
 				const m = parseInt(mode, 8);
 				if ((m & 0o001) === 0) chmodSync(p, m | 0o001);
-			} catch {}
+			} catch {
+				// A parent we cannot stat or change is left as it is; starting the cluster reports what is missing.
+			}
 			p = resolve(p, '..');
 		}
 	}
@@ -123,7 +125,9 @@ export function startCluster({ dir, port, dbName, log = console.log }) {
 	try {
 		pgExec(bin, 'pg_ctl', ['-D', data, 'status']);
 		running = true;
-	} catch {}
+	} catch {
+		// pg_ctl status exits non-zero when the cluster is not running: start it below.
+	}
 	if (!running) {
 		log(`Starting PostgreSQL on 127.0.0.1:${port}`);
 		pgExec(bin, 'pg_ctl', ['-D', data, '-l', join(root, 'postgres.log'), '-w', '-t', '60', 'start']);
@@ -143,7 +147,9 @@ export function startCluster({ dir, port, dbName, log = console.log }) {
 		stop(mode = 'fast') {
 			try {
 				pgExec(bin, 'pg_ctl', ['-D', data, '-m', mode, '-w', 'stop']);
-			} catch {}
+			} catch {
+				// Already stopped.
+			}
 		}
 	};
 }

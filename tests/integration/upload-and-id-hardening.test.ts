@@ -8,7 +8,7 @@ import { createTestDatabase, type TestDatabase } from '../helpers/db';
 import { startApp, type RunningApp } from '../helpers/app';
 import type { Client } from '../helpers/http';
 import { jpeg, pdfDrawing, pdfPage } from '../helpers/images';
-import { created, makeOrg, siteWithMachine } from '../helpers/register';
+import { makeOrg, siteWithMachine } from '../helpers/register';
 
 let t: TestDatabase;
 let app: RunningApp;

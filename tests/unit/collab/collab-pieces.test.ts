@@ -204,7 +204,7 @@ describe('ByteBucket', () => {
 	}
 
 	it('spend charges both the connection and the board, and names the one in debt', () => {
-		let t = 0;
+		const t = 0;
 		const socketA = new ByteBucket(100, 1000, () => t);
 		const socketB = new ByteBucket(100, 1000, () => t);
 		const board = new ByteBucket(100, 1500, () => t);

@@ -97,6 +97,7 @@ export interface BoardProviderOptions {
 	check?: ChangeCheck;
 }
 
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- each event passes its own arguments (see the events listed at the top)
 type Listener = (...a: any[]) => void;
 
 const isBrowser = typeof window !== 'undefined' && typeof document !== 'undefined';

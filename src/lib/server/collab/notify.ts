@@ -3,10 +3,10 @@
 // transaction the notification is delivered on commit, so send it from the transaction that
 // made the change.
 import { sql } from 'kysely';
-import type { Kysely } from 'kysely';
+import type { QueryExecutorProvider } from 'kysely';
 
 export const BOARD_CHANNEL = 'spotface_board';
 
-export async function announceBoardChange(db: Kysely<any>, boardIds: string[]) {
+export async function announceBoardChange(db: QueryExecutorProvider, boardIds: string[]) {
 	for (const id of boardIds) await sql`select pg_notify(${BOARD_CHANNEL}, ${id})`.execute(db);
 }

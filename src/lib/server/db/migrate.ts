@@ -20,7 +20,7 @@ class FolderProvider implements MigrationProvider {
 	}
 }
 
-export function createMigrator(db: Kysely<any>, folder = path.resolve('migrations')) {
+export function createMigrator<DB>(db: Kysely<DB>, folder = path.resolve('migrations')) {
 	return new Migrator({ db, provider: new FolderProvider(folder) });
 }
 
@@ -29,14 +29,14 @@ function check(r: MigrationResultSet): MigrationResultSet {
 	return r;
 }
 
-export async function migrateToLatest(db: Kysely<any>, folder?: string) {
+export async function migrateToLatest<DB>(db: Kysely<DB>, folder?: string) {
 	return check(await createMigrator(db, folder).migrateToLatest());
 }
 
-export async function migrateDown(db: Kysely<any>, folder?: string) {
+export async function migrateDown<DB>(db: Kysely<DB>, folder?: string) {
 	return check(await createMigrator(db, folder).migrateDown());
 }
 
-export async function migrateToEmpty(db: Kysely<any>, folder?: string) {
+export async function migrateToEmpty<DB>(db: Kysely<DB>, folder?: string) {
 	return check(await createMigrator(db, folder).migrateTo(NO_MIGRATIONS));
 }

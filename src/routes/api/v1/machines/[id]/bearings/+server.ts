@@ -15,7 +15,7 @@ export const GET: RequestHandler = async ({ locals, params, url }) => {
 	return json(await machines.listBearings(db, v.organisationId, params.id, { archived: q.archived, page: q.page, perPage: q.perPage }));
 };
 
-export const POST: RequestHandler = async ({ locals, params, request, url }) => {
+export const POST: RequestHandler = async ({ locals, params, request }) => {
 	const v = requireApi(locals, 'register.field-edit');
 	if (v instanceof Response) return v;
 	if (!isUuid(params.id)) return notFound('machine');
