@@ -6,6 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createTestDatabase, type TestDatabase } from '../helpers/db';
 import { startApp, type RunningApp } from '../helpers/app';
 import { openBrowser, signInPage, type Browser } from '../helpers/browser';
+import { clickCanvas, openPoint, waitLive } from '../helpers/board-page';
 import { SCENARIO_PASSWORD, setUpBoardScenario } from '../helpers/board-scenario';
 import { readBoardContent } from '../helpers/collab';
 
@@ -37,25 +38,6 @@ afterAll(async () => {
 	await app?.stop();
 	await t?.drop();
 });
-
-async function waitLive(b: Browser, readOnly = false) {
-	await expect.poll(() => b.page.getByTestId('connection').getAttribute('data-status'), { timeout: 15_000 }).toBe('connected');
-	await expect
-		.poll(() => b.page.getByTestId('connection').textContent(), { timeout: 15_000 })
-		.toContain(readOnly ? 'read-only' : 'all changes saved');
-}
-
-async function clickCanvas(b: Browser, fx: number, fy: number) {
-	const box = (await b.page.getByTestId('board-canvas').boundingBox())!;
-	await b.page.mouse.click(box.x + box.width * fx, box.y + box.height * fy);
-}
-
-async function openPoint(b: Browser, label: string) {
-	await b.page.keyboard.press('Escape');
-	await b.page.getByRole('tab', { name: /All points/ }).click();
-	await b.page.getByTestId('finding-row').filter({ hasText: label }).first().click();
-	await expect.poll(() => b.page.getByTestId('point-editor').locator('h2').textContent()).toBe(`Point ${label}`);
-}
 
 async function transition(b: Browser, label: string, note?: string) {
 	await b.page.goto(surveyUrl);

@@ -368,7 +368,7 @@ function bytes(n: number): string {
 }
 
 /** True when the update holds nothing `doc` lacks: every struct known, every deletion done. */
-function isCoveredBy(doc: Y.Doc, d: ReturnType<typeof Y.decodeUpdate>): boolean {
+export function isCoveredBy(doc: Y.Doc, d: ReturnType<typeof Y.decodeUpdate>): boolean {
 	const store = doc.store;
 	for (const s of d.structs) {
 		if (s instanceof Y.Skip) continue;

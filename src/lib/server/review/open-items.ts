@@ -6,7 +6,7 @@ import { getMachine } from '../db/machines';
 import { getThresholds } from '../db/thresholds';
 import { readBoard } from '../../board/model';
 import { evaluateBoard, compareLabels } from '../../trade';
-import { readBoardDocIn } from './revisions';
+import { machineInputOf, readBoardDocIn } from './revisions';
 
 export interface BoardOpenItems {
 	boardId: string;
@@ -37,15 +37,7 @@ export async function surveyOpenItems(db: DB, organisationId: string, surveyId: 
 		const doc = await readBoardDocIn(db, b.id);
 		try {
 			const board = readBoard(doc);
-			const ev = evaluateBoard(board, {
-				machine: {
-					speedRpm: machine?.speedRpm as number,
-					speedMode: machine?.speedMode ?? 'constant',
-					hasSpeedSignal: machine?.speedSignal ?? false,
-					hazardousArea: machine?.hazardousArea ?? false
-				},
-				thresholds
-			});
+			const ev = evaluateBoard(board, { machine: machineInputOf(machine), thresholds });
 			const points = [...board.points].sort((x, y) => compareLabels(x.label, y.label));
 			const labelOf = new Map(board.points.map((p) => [p.id, p.label]));
 			out.push({

@@ -60,6 +60,16 @@ export function exceptionsOf(boardId: string, board: BoardSnapshot): RevisionExc
 	return board.points.filter((p) => p.status !== 'approved').map((p) => ({ boardId, pointId: p.id, label: p.label, status: p.status }));
 }
 
+/** What the rule engine needs of a machine from the register. */
+export function machineInputOf(machine: Awaited<ReturnType<typeof getMachine>>) {
+	return {
+		speedRpm: machine?.speedRpm as number,
+		speedMode: machine?.speedMode ?? 'constant',
+		hasSpeedSignal: machine?.speedSignal ?? false,
+		hazardousArea: machine?.hazardousArea ?? false
+	};
+}
+
 interface BoardRead {
 	id: string;
 	machineId: string;
@@ -85,15 +95,7 @@ async function readBoards(trx: Trx, organisationId: string, surveyId: string): P
 		const machine = await getMachine(trx, organisationId, r.machine_id);
 		const doc = await readBoardDocIn(trx, r.id);
 		const board = readBoard(doc);
-		const evaluation = evaluateBoard(board, {
-			machine: {
-				speedRpm: machine?.speedRpm as number,
-				speedMode: machine?.speedMode ?? 'constant',
-				hasSpeedSignal: machine?.speedSignal ?? false,
-				hazardousArea: machine?.hazardousArea ?? false
-			},
-			thresholds
-		});
+		const evaluation = evaluateBoard(board, { machine: machineInputOf(machine), thresholds });
 		out.push({ id: r.id, machineId: r.machine_id, mediaId: r.media_id, title: r.title, doc, board, evaluation });
 	}
 	return out;
