@@ -77,7 +77,7 @@ describe('review and approval', () => {
 		await openPoint(engineer, 'P2');
 		await engineer.page.getByTestId('point-review').getByRole('button', { name: 'Approve' }).click();
 		await expect
-			.poll(async () => (await readBoardContent(t.db, boardId)).points.map((p) => [p.label, p.status, p.decisionReason]))
+			.poll(async () => (await readBoardContent(t.db, boardId)).points.map((p) => [p.label, p.status, p.decisionReason]).sort())
 			.toEqual([
 				['P1', 'flagged', 'sheet_cover'],
 				['P2', 'approved', null]
@@ -124,7 +124,7 @@ describe('review and approval', () => {
 		}
 		const revision = await t.db.selectFrom('revision_point').select(['label', 'status', 'y']).orderBy('label').execute();
 		const stored = (await readBoardContent(t.db, boardId)).points;
-		expect(revision.map((r) => [r.label, r.status, Number(r.y)])).toEqual(stored.map((p) => [p.label, p.status, p.y]));
+		expect(revision.map((r) => [r.label, r.status, Number(r.y)])).toEqual(stored.map((p) => [p.label, p.status, p.y]).sort());
 	});
 
 	it('after reopening, the board shows what moved since the approved revision', async () => {

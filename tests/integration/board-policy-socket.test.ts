@@ -146,7 +146,7 @@ describe('the board policy on the server, through the real socket', () => {
 		refusedWith(await tech.send((d) => maps(d).routes.delete(r1)), /P1 was approved .* keeps its cable route/);
 		expect(await logRows(boardId)).toBe(rows);
 		const stored = readBoard(await storedDoc(t.db, boardId));
-		expect(stored.points.map((p) => [p.label, p.status, p.flatDiameterMm])).toEqual([
+		expect(stored.points.map((p) => [p.label, p.status, p.flatDiameterMm]).sort()).toEqual([
 			['P1', 'approved', 40],
 			['P2', 'flagged', null],
 			['P3', 'rejected', null]
@@ -161,7 +161,8 @@ describe('the board policy on the server, through the real socket', () => {
 		expect(await eng.send((d) => updatePoint(d, p2, { status: 'proposed' }))).toEqual({ ok: true });
 		expect(await eng.send((d) => deletePoint(d, p3))).toEqual({ ok: true });
 		const stored = readBoard(await storedDoc(t.db, boardId));
-		expect(stored.points.map((p) => [p.label, p.status, p.flatDiameterMm])).toEqual([
+		// Points placed in one change share a time; the order of the list is by label here.
+		expect(stored.points.map((p) => [p.label, p.status, p.flatDiameterMm]).sort()).toEqual([
 			['P1', 'approved', 10],
 			['P2', 'proposed', null]
 		]);
