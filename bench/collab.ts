@@ -18,11 +18,7 @@ import { monitorEventLoopDelay } from 'node:perf_hooks';
 import { cpus, loadavg } from 'node:os';
 import pg from 'pg';
 import * as Y from 'yjs';
-import { existsSync } from 'node:fs';
-import { spawnSync } from 'node:child_process';
-import { startCluster as startClusterJs } from '../server/setup/pg.mjs';
-import { createDb } from '../src/lib/server/db/index';
-import { migrateToLatest } from '../src/lib/server/db/migrate';
+import { openBenchDatabase } from './private-db';
 import { startApp, type RunningApp } from '../tests/helpers/app';
 import { createBoardFixture, openProvider, sessionCookie, waitFor } from '../tests/helpers/collab';
 import { addPoint, maps, movePoint, updatePoint, LOCAL_ORIGIN } from '../src/lib/board/model';
@@ -99,29 +95,17 @@ async function main() {
 	console.log(
 		`live board benchmark: ${BOARDS} boards × ${CLIENTS} clients, ${RATE} edits/s each, ${SECONDS} s measured after ${WARMUP} s warm-up, ${PROCESSES} server process(es), ${COMMIT === 'sync' ? 'synchronous commit (as in production)' : 'ASYNCHRONOUS commit (comparison only)'}`
 	);
-	const startCluster = startClusterJs as unknown as (o: { dir: string; port: number; dbName: string; log: () => void }) => {
-		url: string;
-		psql(sql: string): string;
-		stop(): void;
-	};
-	const cluster = startCluster({
+	const bench = await openBenchDatabase({
 		dir: '.data/pg-bench',
-		port: Number(process.env.SPOTFACE_BENCH_PG_PORT ?? 54349),
-		dbName: 'postgres',
-		log: () => {}
+		defaultPort: 54349,
+		name: 'spotface_bench',
+		prepare: (c) => {
+			c.psql('alter system reset all');
+			c.psql('select pg_reload_conf()');
+		}
 	});
-	cluster.psql('alter system reset all');
-	cluster.psql('select pg_reload_conf()');
-	cluster.psql('drop database if exists spotface_bench with (force)');
-	cluster.psql('create database spotface_bench');
-	if (COMMIT === 'async') cluster.psql('alter database spotface_bench set synchronous_commit = off');
-	const url = cluster.url.replace(/\/postgres$/, '/spotface_bench');
-	const t = createDb(url, 5);
-	await migrateToLatest(t.db);
-	if (!existsSync('build/handler.js')) {
-		const r = spawnSync('npx', ['vite', 'build', '--logLevel', 'error'], { stdio: 'inherit' });
-		if (r.status !== 0) throw new Error('vite build failed');
-	}
+	if (COMMIT === 'async') bench.cluster.psql('alter database spotface_bench set synchronous_commit = off');
+	const { url, handle: t } = bench;
 	const apps: RunningApp[] = [];
 	const providers: BoardProvider[] = [];
 	const probe = new pg.Pool({ connectionString: url, max: 4 });
@@ -318,8 +302,7 @@ async function main() {
 		await Promise.all(providers.map((p) => p.destroy()));
 		await probe.end();
 		await Promise.all(apps.map((a) => a.stop()));
-		await t.close();
-		cluster.stop();
+		await bench.close();
 	}
 }
 

@@ -12,18 +12,15 @@
 //
 // Hold the build lock, as the integration tests do (it uses build/):
 //   flock /tmp/build.lock npx tsx bench/flood.ts
-import { readFileSync, existsSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
-import { spawnSync } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import { cpus, loadavg } from 'node:os';
 import * as Y from 'yjs';
 import * as encoding from 'lib0/encoding';
 import * as syncProtocol from 'y-protocols/sync';
 import { io as connect, type Socket } from 'socket.io-client';
-import { startCluster as startClusterJs } from '../server/setup/pg.mjs';
-import { createDb } from '../src/lib/server/db/index';
-import { migrateToLatest } from '../src/lib/server/db/migrate';
+import { openBenchDatabase } from './private-db';
 import { startApp, type RunningApp } from '../tests/helpers/app';
 import { createBoardFixture, openProvider, sessionCookie, waitFor } from '../tests/helpers/collab';
 import { addPoint, maps, updatePoint, LOCAL_ORIGIN } from '../src/lib/board/model';
@@ -79,26 +76,8 @@ async function main() {
 		`flood benchmark: ${SIZE / 1024} KB updates at ${RATE}/s for ${SECONDS} s (${((SIZE * RATE * SECONDS) / 2 ** 20).toFixed(1)} MB) on one board; ` +
 			`2 people on another board at ${EDITS} edits/s each; ${LIMITS ? 'default limits' : 'NO byte budgets or size limits'}`
 	);
-	const startCluster = startClusterJs as unknown as (o: { dir: string; port: number; dbName: string; log: () => void }) => {
-		url: string;
-		psql(sql: string): string;
-		stop(): void;
-	};
-	const cluster = startCluster({
-		dir: '.data/pg-flood',
-		port: Number(process.env.SPOTFACE_BENCH_PG_PORT ?? 54359),
-		dbName: 'postgres',
-		log: () => {}
-	});
-	cluster.psql('drop database if exists spotface_flood with (force)');
-	cluster.psql('create database spotface_flood');
-	const url = cluster.url.replace(/\/postgres$/, '/spotface_flood');
-	const t = createDb(url, 3);
-	await migrateToLatest(t.db);
-	if (!existsSync('build/handler.js')) {
-		const r = spawnSync('npx', ['vite', 'build', '--logLevel', 'error'], { stdio: 'inherit' });
-		if (r.status !== 0) throw new Error('vite build failed');
-	}
+	const bench = await openBenchDatabase({ dir: '.data/pg-flood', defaultPort: 54359, name: 'spotface_flood', poolSize: 3 });
+	const { url, handle: t } = bench;
 	const unlimited = {
 		COLLAB_MAX_UPDATE_BYTES: '1000000',
 		COLLAB_MAX_DOCUMENT_BYTES: String(2 ** 40),
@@ -240,8 +219,7 @@ async function main() {
 		flooder?.disconnect();
 		await Promise.all(providers.map((p) => p.destroy()));
 		await app?.stop();
-		await t.close();
-		cluster.stop();
+		await bench.close();
 	}
 }
 

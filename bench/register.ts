@@ -5,9 +5,8 @@
 import { parseArgs } from 'node:util';
 import { sql } from 'kysely';
 import { cpus, loadavg } from 'node:os';
-import { startCluster as startClusterJs } from '../server/setup/pg.mjs';
+import { openBenchDatabase } from './private-db';
 import { createDb } from '../src/lib/server/db/index';
-import { migrateToLatest } from '../src/lib/server/db/migrate';
 import { hashPassword } from '../src/lib/server/auth/password';
 import { startApp } from '../tests/helpers/app';
 import { Client } from '../tests/helpers/http';
@@ -78,21 +77,8 @@ async function main() {
 			.map((x) => x.toFixed(2))
 			.join(' ')} (${cpus().length} CPUs)`
 	);
-	const startCluster = startClusterJs as unknown as (o: { dir: string; port: number; dbName: string; log: () => void }) => {
-		url: string;
-		psql(sql: string): string;
-	};
-	const cluster = startCluster({
-		dir: '.data/pg-bench',
-		port: Number(process.env.SPOTFACE_BENCH_PG_PORT ?? 54349),
-		dbName: 'postgres',
-		log: () => {}
-	});
-	cluster.psql('drop database if exists spotface_bench_register with (force)');
-	cluster.psql('create database spotface_bench_register');
-	const url = cluster.url.replace(/\/postgres$/, '/spotface_bench_register');
-	const h = createDb(url, 5);
-	await migrateToLatest(h.db);
+	const bench = await openBenchDatabase({ dir: '.data/pg-bench', defaultPort: 54349, name: 'spotface_bench_register' });
+	const { url, handle: h } = bench;
 	const hash = await hashPassword('bench planner 1');
 	const seeded = Date.now();
 	const mine = await seedOrg(h.db, 'Bench Utility', 'planner@bench.test', hash);
@@ -141,7 +127,8 @@ async function main() {
 	}
 	await app.stop();
 	await h.close();
-	cluster.psql('drop database if exists spotface_bench_register with (force)');
+	bench.cluster.psql('drop database if exists spotface_bench_register with (force)');
+	bench.cluster.stop();
 }
 
 main().catch((e) => {
