@@ -12,7 +12,9 @@ export default defineConfig({
 				test: {
 					name: 'unit',
 					include: ['tests/unit/**/*.test.ts'],
-					environment: 'node'
+					environment: 'node',
+					// Property tests and image work take seconds on a busy two-core machine.
+					testTimeout: 30_000
 				}
 			},
 			{
