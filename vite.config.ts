@@ -6,6 +6,8 @@ import { collabDevPlugin } from './server/dev-plugin';
 export default defineConfig({
 	plugins: [tailwindcss(), sveltekit(), collabDevPlugin()],
 	test: {
+		// A polled assertion waits for the app, not for a fixed second: busy machines are slower.
+		expect: { poll: { timeout: 15_000 } },
 		projects: [
 			{
 				extends: true,

@@ -104,7 +104,7 @@ export function openProvider(serverUrl: string, boardId: string, cookie: string 
 }
 
 /** Polls until `check` returns a truthy value (retrying assertions instead of sleeping). */
-export async function waitFor<T>(check: () => T | Promise<T>, what = 'condition', timeoutMs = 10_000): Promise<T> {
+export async function waitFor<T>(check: () => T | Promise<T>, what = 'condition', timeoutMs = 20_000): Promise<T> {
 	const start = Date.now();
 	let last: unknown;
 	for (;;) {
