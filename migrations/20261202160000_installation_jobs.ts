@@ -13,7 +13,12 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('revision_id', 'uuid', (c) => c.notNull().references('survey_revision.id').onDelete('cascade'))
 		.addColumn('number', 'integer', (c) => c.notNull().check(sql`number > 0`))
 		.addColumn('title', 'text', (c) => c.notNull().check(sql`char_length(title) between 1 and 200`))
-		.addColumn('status', 'text', (c) => c.notNull().defaultTo('issued').check(sql`status in ('issued', 'closed')`))
+		.addColumn('status', 'text', (c) =>
+			c
+				.notNull()
+				.defaultTo('issued')
+				.check(sql`status in ('issued', 'closed')`)
+		)
 		.addColumn('assignee_user_id', 'text', (c) => c.references('app_user.id').onDelete('set null'))
 		.addColumn('outage_start', 'timestamptz')
 		.addColumn('outage_end', 'timestamptz')

@@ -56,7 +56,13 @@ function planFindings(o: Record<string, unknown>, mounting: Mounting | undefined
 				)
 			);
 		} else if (methodDiffers || !blank(deviation)) {
-			out.push(finding('install.deviation', 'warn', `Deviation from the plan: ${(deviation ?? '').trim() || 'method changed'} (${(reason ?? '').trim()}).`));
+			out.push(
+				finding(
+					'install.deviation',
+					'warn',
+					`Deviation from the plan: ${(deviation ?? '').trim() || 'method changed'} (${(reason ?? '').trim()}).`
+				)
+			);
 		}
 	}
 	const ready = timeOf(o.readyAt as string | Date | null | undefined);
@@ -70,7 +76,13 @@ function planFindings(o: Record<string, unknown>, mounting: Mounting | undefined
 		if (baseline === null) out.push(finding('install.baseline', 'warn', 'Start the baseline period and record when it started.'));
 		else if (Number.isNaN(baseline)) out.push(finding('install.baseline', 'fail', 'The baseline start is not a valid date and time.'));
 		else if (typeof ready === 'number' && !Number.isNaN(ready) && baseline < ready) {
-			out.push(finding('install.baseline', 'fail', 'The baseline started before the device reported ready: start it again once the device is ready.'));
+			out.push(
+				finding(
+					'install.baseline',
+					'fail',
+					'The baseline started before the device reported ready: start it again once the device is ready.'
+				)
+			);
 		} else out.push(finding('install.baseline', 'pass', 'Baseline period started.'));
 	}
 	if (o.photo !== undefined) {

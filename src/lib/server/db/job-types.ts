@@ -17,8 +17,8 @@ export interface InstallationJobTable {
 	title: string;
 	status: Generated<JobStatus>;
 	assignee_user_id: string | null;
-	outage_start: Date | null;
-	outage_end: Date | null;
+	outage_start: ColumnType<Date | null, Date | string | null | undefined, Date | string | null>;
+	outage_end: ColumnType<Date | null, Date | string | null | undefined, Date | string | null>;
 	/** date: pg reads it back as a Date at local midnight; see dateText() in db/jobs.ts. */
 	due_date: ColumnType<Date | string | null, string | null | undefined, string | null>;
 	lockout_required: boolean;

@@ -76,7 +76,11 @@ export function listJobs(db: Q, organisationId: string, filter: JobListFilter = 
 	if (filter.surveyId) q = q.where('j.survey_id', '=', filter.surveyId);
 	if (filter.assigneeUserId) q = q.where('j.assignee_user_id', '=', filter.assigneeUserId);
 	if (filter.status) q = q.where('j.status', '=', filter.status);
-	return q.orderBy('j.due_date', (o) => o.asc().nullsLast()).orderBy('j.number').limit(1000).execute();
+	return q
+		.orderBy('j.due_date', (o) => o.asc().nullsLast())
+		.orderBy('j.number')
+		.limit(1000)
+		.execute();
 }
 
 export type JobListRow = Awaited<ReturnType<typeof listJobs>>[number];
@@ -213,7 +217,9 @@ export async function approvedPointsOfLatestRevision(db: Q, organisationId: stri
 		.selectFrom('revision_point as rp')
 		.innerJoin('revision_board as rb', 'rb.id', 'rp.revision_board_id')
 		.innerJoin('machine as m', (j) => j.onRef('m.id', '=', 'rb.machine_id').on('m.organisation_id', '=', organisationId))
-		.leftJoin('job_point as jp', (j) => j.onRef('jp.revision_board_id', '=', 'rp.revision_board_id').onRef('jp.point_id', '=', 'rp.point_id'))
+		.leftJoin('job_point as jp', (j) =>
+			j.onRef('jp.revision_board_id', '=', 'rp.revision_board_id').onRef('jp.point_id', '=', 'rp.point_id')
+		)
 		.select([
 			'rp.revision_board_id',
 			'rp.point_id',

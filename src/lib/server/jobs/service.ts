@@ -45,7 +45,14 @@ const isMounting = (v: unknown): v is Mounting => (MOUNTINGS as readonly unknown
  * exactly one job; the survey moves to "jobs issued" in the same transaction. Each assignee gets
  * one e-mail per job once the transaction has committed.
  */
-export async function issueJobs(db: DB, mail: IssueMail | null, organisationId: string, surveyId: string, actor: Actor, input: IssueJobsInput) {
+export async function issueJobs(
+	db: DB,
+	mail: IssueMail | null,
+	organisationId: string,
+	surveyId: string,
+	actor: Actor,
+	input: IssueJobsInput
+) {
 	if (!can(actor.role, 'job.issue')) throw new JobError(403, 'Your role cannot issue jobs.');
 	const created = await db.transaction().execute(async (trx) => {
 		const survey = await trx
@@ -68,7 +75,8 @@ export async function issueJobs(db: DB, mail: IssueMail | null, organisationId: 
 		for (const [i, j] of input.jobs.entries()) {
 			for (const p of j.points) {
 				const key = `${p.revisionBoardId}/${p.pointId}`;
-				if (!byKey.has(key)) throw new JobError(400, `Job ${i + 1}: a point is not an approved point of revision ${input.revision}.`, 'jobs');
+				if (!byKey.has(key))
+					throw new JobError(400, `Job ${i + 1}: a point is not an approved point of revision ${input.revision}.`, 'jobs');
 				if (seen.has(key)) throw new JobError(400, `Point ${byKey.get(key)!.label} is in two jobs; put it in one.`, 'jobs');
 				if (byKey.get(key)!.job_id) throw new JobError(409, `Point ${byKey.get(key)!.label} is in a job already.`, 'jobs');
 				seen.add(key);
@@ -76,7 +84,11 @@ export async function issueJobs(db: DB, mail: IssueMail | null, organisationId: 
 		}
 		const missing = latest.points.filter((p) => !seen.has(`${p.revision_board_id}/${p.point_id}`));
 		if (missing.length) {
-			throw new JobError(400, `Every approved point goes in a job: ${missing.map((p) => p.label).join(', ')} ${missing.length === 1 ? 'is' : 'are'} left out.`, 'jobs');
+			throw new JobError(
+				400,
+				`Every approved point goes in a job: ${missing.map((p) => p.label).join(', ')} ${missing.length === 1 ? 'is' : 'are'} left out.`,
+				'jobs'
+			);
 		}
 		const assignable = new Map(
 			(
@@ -323,7 +335,9 @@ export async function closeJob(db: DB, organisationId: string, jobId: string, ac
 		const check = checkClose(
 			points.map((p) => ({
 				label: p.label,
-				record: p.recorded_at ? { worst: p.worst, findings: (p.findings ?? []) as Array<{ severity: 'pass' | 'warn' | 'fail'; message: string }> } : null
+				record: p.recorded_at
+					? { worst: p.worst, findings: (p.findings ?? []) as Array<{ severity: 'pass' | 'warn' | 'fail'; message: string }> }
+					: null
 			})),
 			note
 		);

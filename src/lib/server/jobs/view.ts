@@ -176,7 +176,12 @@ export async function loadJob(db: DB, organisationId: string, jobId: string): Pr
 	const boards = new Map<string, JobView['boards'][number]>();
 	for (const p of points) {
 		if (!boards.has(p.revisionBoardId)) {
-			boards.set(p.revisionBoardId, { revisionBoardId: p.revisionBoardId, boardId: p.boardId, title: p.boardTitle, mediaId: p.boardMediaId });
+			boards.set(p.revisionBoardId, {
+				revisionBoardId: p.revisionBoardId,
+				boardId: p.boardId,
+				title: p.boardTitle,
+				mediaId: p.boardMediaId
+			});
 		}
 	}
 	const { points: _points, ...jobPlan } = plan;

@@ -49,7 +49,7 @@ export interface TransitionResult {
 export async function transitionSurvey(db: DB, input: TransitionInput): Promise<TransitionResult> {
 	if (input.name === 'issue_jobs') {
 		// Issuing needs the jobs themselves (points, assignee, outage window): see jobs/issue.ts.
-		throw new WorkflowError(409, 'Jobs are issued from the survey\'s “Issue jobs” page, with their points, assignees and dates.');
+		throw new WorkflowError(409, "Jobs are issued from the survey's “Issue jobs” page, with their points, assignees and dates.");
 	}
 	return db.transaction().execute((trx) => transitionSurveyIn(trx, input));
 }
