@@ -5,6 +5,7 @@ import type { Transaction } from 'kysely';
 import type { DB } from '../db/index';
 import type { Database } from '../db/types';
 import type { JobStatus } from '../db/job-types';
+import { isUuid } from '../../schemas/ids';
 
 type Q = DB | Transaction<Database>;
 
@@ -170,26 +171,40 @@ export function listJobPoints(db: Q, organisationId: string, jobId: string) {
 export type JobPointListRow = Awaited<ReturnType<typeof listJobPoints>>[number];
 
 /** Cable routes on revision boards, with their supply point (the organisation's only). */
-export function listRoutesOfBoards(db: Q, organisationId: string, revisionBoardIds: string[]) {
-	if (!revisionBoardIds.length) return Promise.resolve([]);
-	return db
+export async function listRoutesOfBoards(db: Q, organisationId: string, revisionBoardIds: string[]) {
+	if (!revisionBoardIds.length) return [];
+	const routes = await db
 		.selectFrom('revision_route as rr')
-		.leftJoin('supply_point as sp', (j) => j.onRef('sp.id', '=', 'rr.supply_point_id').on('sp.organisation_id', '=', organisationId))
 		.select([
 			'rr.revision_board_id',
 			'rr.route_id',
 			'rr.point_id',
+			'rr.supply_point_id',
 			'rr.vertices',
 			'rr.length_m',
 			'rr.cross_section_mm2',
 			'rr.exit_label',
-			'rr.supply_v',
-			'sp.name as supply_name',
-			'sp.tag as supply_tag'
+			'rr.supply_v'
 		])
 		.where('rr.revision_board_id', 'in', revisionBoardIds)
 		.orderBy('rr.route_id')
 		.execute();
+	// The revision keeps the supply point's id as the board stored it (text); only well-formed ids
+	// of this organisation's supply points are looked up.
+	const ids = [...new Set(routes.map((r) => r.supply_point_id).filter((x): x is string => isUuid(x)))];
+	const supplies = ids.length
+		? await db
+				.selectFrom('supply_point')
+				.select(['id', 'name', 'tag'])
+				.where('organisation_id', '=', organisationId)
+				.where('id', 'in', ids)
+				.execute()
+		: [];
+	const byId = new Map(supplies.map((s) => [s.id, s]));
+	return routes.map((r) => {
+		const sp = r.supply_point_id ? byId.get(r.supply_point_id) : undefined;
+		return { ...r, supply_name: sp?.name ?? null, supply_tag: sp?.tag ?? null };
+	});
 }
 
 /** Zones of the revision boards a job's points are on (drawn on the pack's board image). */
