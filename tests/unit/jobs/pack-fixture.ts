@@ -5,13 +5,14 @@ import type { JobPackInput, JobPackPoint, PaperSize } from '../../../src/lib/ser
 import { DEFAULT_THRESHOLDS, planJob, SAFETY_CAUTIONS, type JobPlanPoint } from '../../../src/lib/trade';
 
 /** A small photo-like PNG (a grey housing on a blue-grey background) made here, not read from disk. */
-export async function boardPng(width = 640, height = 420): Promise<Uint8Array> {
+export async function boardPng(width = 640, height = 420, format: 'png' | 'jpeg' = 'png'): Promise<Uint8Array> {
 	const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}">
 		<rect width="100%" height="100%" fill="#8fa3b5"/>
 		<rect x="${width * 0.15}" y="${height * 0.25}" width="${width * 0.5}" height="${height * 0.5}" rx="18" fill="#5b6570"/>
 		<circle cx="${width * 0.78}" cy="${height * 0.5}" r="${height * 0.18}" fill="#3d444b"/>
 	</svg>`;
-	return new Uint8Array(await sharp(Buffer.from(svg)).png().toBuffer());
+	const img = sharp(Buffer.from(svg));
+	return new Uint8Array(await (format === 'png' ? img.png() : img.jpeg()).toBuffer());
 }
 
 const MOUNTS: Array<Pick<JobPlanPoint, 'mounting' | 'material'>> = [
@@ -21,7 +22,9 @@ const MOUNTS: Array<Pick<JobPlanPoint, 'mounting' | 'material'>> = [
 ];
 
 /** `count` points cycling stud, bonded pad, magnet, with routes, findings and checklists from the trade module. */
-export async function packInput(opts: { paper?: PaperSize; count?: number; photo?: boolean } = {}): Promise<JobPackInput> {
+export async function packInput(
+	opts: { paper?: PaperSize; count?: number; photo?: boolean; photoFormat?: 'png' | 'jpeg' } = {}
+): Promise<JobPackInput> {
 	const count = opts.count ?? 3;
 	const width = 640;
 	const height = 420;
@@ -76,7 +79,12 @@ export async function packInput(opts: { paper?: PaperSize; count?: number; photo
 		boards: [
 			{
 				title: 'Pump and motor, drive side',
-				image: opts.photo === false ? null : { bytes: await boardPng(width, height), mime: 'image/png', width, height },
+				image:
+					opts.photo === false
+						? null
+						: opts.photoFormat === 'jpeg'
+							? { bytes: await boardPng(width, height, 'jpeg'), mime: 'image/jpeg', width, height }
+							: { bytes: await boardPng(width, height), mime: 'image/png', width, height },
 				width,
 				height,
 				points: points.map((p, i) => ({

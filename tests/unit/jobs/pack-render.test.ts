@@ -1,4 +1,4 @@
-import { getDocument } from 'pdfjs-dist/legacy/build/pdf.mjs';
+import { getDocument, OPS } from 'pdfjs-dist/legacy/build/pdf.mjs';
 import { describe, expect, test } from 'vitest';
 import { formatWhen, PAPER_SIZES, renderJobPack } from '../../../src/lib/server/jobs/pack/render';
 import { woffToSfnt } from '../../../src/lib/server/jobs/pack/text';
@@ -10,6 +10,8 @@ interface ParsedPage {
 	width: number;
 	height: number;
 	text: string;
+	/** Images painted on the page (the board photo). */
+	images: number;
 }
 
 /** Parses the PDF back with pdfjs-dist: page sizes and the text of each page, white space collapsed. */
@@ -24,7 +26,9 @@ async function parse(bytes: Uint8Array): Promise<ParsedPage[]> {
 			.map((it) => ('str' in it ? it.str + (it.hasEOL ? '\n' : '') : ''))
 			.join('')
 			.replace(/\s+/g, ' ');
-		pages.push({ width: x1 - x0, height: y1 - y0, text });
+		const ops = await page.getOperatorList();
+		const images = ops.fnArray.filter((op) => op === OPS.paintImageXObject).length;
+		pages.push({ width: x1 - x0, height: y1 - y0, text, images });
 	}
 	await pdf.destroy();
 	return pages;
@@ -55,6 +59,7 @@ describe('renderJobPack', { timeout: 60_000 }, () => {
 		expect(text).toContain('Sensor cable, 2-core 0.75 mm² class 5');
 		expect(text).toContain('15 % margin over the measured route length');
 		for (const tool of input.tools) expect(text).toContain(tool);
+		expect(pages[0].images).toBe(1); // the board photo
 		expect(text).toContain('J-0007');
 		expect(text).toContain('Harrowgate Water Services');
 		expect(text).toContain('Tomas Reed');
@@ -70,8 +75,9 @@ describe('renderJobPack', { timeout: 60_000 }, () => {
 		expect(pages[0].text).toContain(`page 1 of ${pages.length}`);
 	});
 
-	test('Letter: 612 × 792 pt (8.5 × 11 in at 72 pt/in)', async () => {
-		const pages = await parse(await renderJobPack(await packInput({ paper: 'Letter', count: 3 })));
+	test('Letter: 612 × 792 pt (8.5 × 11 in at 72 pt/in); a JPEG photo is embedded too', async () => {
+		const pages = await parse(await renderJobPack(await packInput({ paper: 'Letter', count: 3, photoFormat: 'jpeg' })));
+		expect(pages[0].images).toBe(1);
 		expect(PAPER_SIZES.Letter).toEqual([612, 792]);
 		for (const p of pages) {
 			expect(p.width).toBeCloseTo(612, 3);
@@ -97,7 +103,9 @@ describe('renderJobPack', { timeout: 60_000 }, () => {
 			job: { ...base.job, lockoutRequired: false, assignee: null, outageStart: null, outageEnd: null, due: null },
 			points: base.points.map((p) => ({ ...p, label: 'Pump ≥ 3 → “fan” 泵 \u0007', notes: 'x'.repeat(400) }))
 		};
-		const text = all(await parse(await renderJobPack(input)));
+		const pages = await parse(await renderJobPack(input));
+		const text = all(pages);
+		expect(pages.every((p) => p.images === 0)).toBe(true);
 		expect(text).toContain('No photo on this board');
 		expect(text).not.toContain('LOCKOUT REQUIRED');
 		expect(text).toContain('no drilling, tapping or grinding is planned');
