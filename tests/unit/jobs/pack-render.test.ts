@@ -4,7 +4,7 @@ import { formatWhen, PAPER_SIZES, renderJobPack } from '../../../src/lib/server/
 import { woffToSfnt } from '../../../src/lib/server/jobs/pack/text';
 import type { JobPackInput } from '../../../src/lib/server/jobs/pack/types';
 import { SAFETY_CAUTIONS } from '../../../src/lib/trade';
-import { packInput } from './pack-fixture';
+import { packInput } from '../../helpers/job-pack';
 
 interface ParsedPage {
 	width: number;

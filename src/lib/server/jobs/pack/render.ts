@@ -664,7 +664,14 @@ function drawFooters(w: PackWriter) {
 	});
 }
 
-/** Renders the job pack to PDF bytes (A4 or Letter as `input.paper` says). */
+/** Lets other requests and the live board run between the pieces of a long pack. */
+const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resolve));
+
+/**
+ * Renders the job pack to PDF bytes (A4 or Letter as `input.paper` says). The work is CPU-bound
+ * (text shaping, compression); it yields to the event loop after each board and point so a large
+ * pack never holds up the server for long.
+ */
 export async function renderJobPack(input: JobPackInput): Promise<Uint8Array> {
 	const doc = await PDFDocument.create();
 	doc.registerFontkit(fontkit);
@@ -683,11 +690,17 @@ export async function renderJobPack(input: JobPackInput): Promise<Uint8Array> {
 
 	const w = new PackWriter(doc, t, input);
 	drawHeader(w);
-	for (const board of input.boards) await drawBoard(w, board);
+	for (const board of input.boards) {
+		await drawBoard(w, board);
+		await yieldToEventLoop();
+	}
 	drawPointsTable(w);
 	if (input.points.length) {
 		w.heading('Preparation and checklist per point', { keepWith: 120 });
-		for (const p of input.points) drawPointDetail(w, p);
+		for (const p of input.points) {
+			drawPointDetail(w, p);
+			await yieldToEventLoop();
+		}
 	}
 	drawMaterials(w);
 	w.heading('Tools', { keepWith: 40 });

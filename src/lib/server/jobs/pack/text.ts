@@ -164,11 +164,26 @@ export class Typesetter {
 	/** Widths at size 1 of text already cleaned, per weight; text width is linear in the size. */
 	private readonly widths = [new Map<string, number>(), new Map<string, number>()];
 
+	private readonly runWidths = new Map<PDFFont, Map<string, number>>();
+
+	/** Width at size 1 of a run in one font, remembered: measuring lays the text out, which is slow. */
+	private runWidth(font: PDFFont, text: string): number {
+		let cache = this.runWidths.get(font);
+		if (!cache) this.runWidths.set(font, (cache = new Map()));
+		let w = cache.get(text);
+		if (w === undefined) {
+			w = font.widthOfTextAtSize(text, 1);
+			if (cache.size > 20_000) cache.clear();
+			cache.set(text, w);
+		}
+		return w;
+	}
+
 	private measure(clean: string, style: Style): number {
 		const cache = this.widths[style.bold ? 1 : 0];
 		let w = cache.get(clean);
 		if (w === undefined) {
-			w = this.runs(clean, style.bold).reduce((sum, r) => sum + r.font.widthOfTextAtSize(r.text, 1), 0);
+			w = this.runs(clean, style.bold).reduce((sum, r) => sum + this.runWidth(r.font, r.text), 0);
 			if (cache.size > 20_000) cache.clear();
 			cache.set(clean, w);
 		}
@@ -185,7 +200,7 @@ export class Typesetter {
 		let at = x;
 		for (const r of this.runs(clean, style.bold)) {
 			page.drawText(r.text, { x: at, y, size: style.size, font: r.font, color: style.color });
-			at += r.font.widthOfTextAtSize(r.text, style.size);
+			at += this.runWidth(r.font, r.text) * style.size;
 		}
 		return at - x;
 	}

@@ -1,8 +1,8 @@
 // A job pack input as the jobs module would build it, for the renderer's tests and for
-// looking at the output by eye (tests/unit/jobs/pack-preview.ts).
+// the benchmark (bench/job-pack.ts).
 import sharp from 'sharp';
-import type { JobPackInput, JobPackPoint, PaperSize } from '../../../src/lib/server/jobs/pack/types';
-import { DEFAULT_THRESHOLDS, planJob, SAFETY_CAUTIONS, type JobPlanPoint } from '../../../src/lib/trade';
+import type { JobPackInput, JobPackPoint, PaperSize } from '../../src/lib/server/jobs/pack/types';
+import { DEFAULT_THRESHOLDS, planJob, SAFETY_CAUTIONS, type JobPlanPoint } from '../../src/lib/trade';
 
 /** A small photo-like PNG (a grey housing on a blue-grey background) made here, not read from disk. */
 export async function boardPng(width = 640, height = 420, format: 'png' | 'jpeg' = 'png'): Promise<Uint8Array> {
