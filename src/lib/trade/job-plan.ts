@@ -152,7 +152,7 @@ export function preparationSummary(prep: SeatPreparation, opts: { material?: Mat
 			return parts.join('; ');
 		}
 		case 'bonded_pad':
-			return `Grind flat Ø${fmt(prep.spotFaceDiameterMm ?? t.minFlatDiameterMm)} mm; bond pad; cure ≥ ${fmt(prep.cureWaitMin ?? t.padCureMin, 0)} min before loading`;
+			return `Grind flat Ø${fmt(prep.spotFaceDiameterMm ?? t.minFlatDiameterMm)} mm; bond pad; cure at least ${fmt(prep.cureWaitMin ?? t.padCureMin, 0)} min before loading`;
 		case 'magnet':
 			return `Clean a flat seat Ø${fmt(t.minFlatDiameterMm)} mm; no machining (magnets are for temporary points)`;
 		default:

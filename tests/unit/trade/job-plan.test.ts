@@ -86,7 +86,7 @@ describe('seatPreparation by mounting method', () => {
 		expect(p.pad).toBeTruthy();
 		expect(p.adhesive).toBeTruthy();
 		expect(seatPreparation('bonded_pad', { thresholds: { ...DEFAULT_THRESHOLDS, padCureMin: 40 } }).cureWaitMin).toBe(40);
-		expect(preparationSummary(p)).toMatch(/cure ≥ 15 min/);
+		expect(preparationSummary(p)).toMatch(/cure at least 15 min/);
 	});
 	test('magnet: nothing machined', () => {
 		const p = seatPreparation('magnet');
