@@ -9,6 +9,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as Y from 'yjs';
 import Papa from 'papaparse';
+import { getDocument, OPS } from 'pdfjs-dist/legacy/build/pdf.mjs';
 import { createTestDatabase, type TestDatabase } from '../helpers/db';
 import { seedDemo, DEMO_ORG } from '../../src/lib/server/db/seed';
 import { DEMO_SURVEY } from '../../src/lib/server/db/seed-survey';
@@ -23,6 +24,10 @@ import { loadJob } from '../../src/lib/server/jobs/view';
 import { jobsToCsv, jobsToJson, pointsToCsv, POINT_CSV_COLUMNS } from '../../src/lib/server/jobs/export';
 import { createMailer } from '../../src/lib/server/mail/mailer';
 import { recordPointSchema, type IssueJobsInput } from '../../src/lib/schemas/job';
+import { boardPhotos, jobPackInputOf } from '../../src/lib/server/jobs/pack-input';
+import { renderJobPack } from '../../src/lib/server/jobs/pack/render';
+import { SAFETY_CAUTIONS } from '../../src/lib/trade';
+import type { Storage } from '../../src/lib/server/storage/index';
 
 let t: TestDatabase;
 let org: string;
@@ -31,6 +36,7 @@ let engineer: { userId: string; role: 'engineer' };
 let tech: { userId: string; role: 'technician' };
 let viewer: { userId: string; role: 'viewer' };
 let jobIds: string[] = [];
+let storage: Storage;
 
 const mail = () => ({ mailer: createMailer({ db: t.db, from: 'spotface@test.example' }), origin: 'http://spotface.test' });
 
@@ -52,7 +58,8 @@ async function write(boardId: string, edit: (doc: Y.Doc) => void) {
 
 beforeAll(async () => {
 	t = await createTestDatabase();
-	await seedDemo(t.db, [], { storage: diskStorage(mkdtempSync(join(tmpdir(), 'spotface-jobs-'))) });
+	storage = diskStorage(mkdtempSync(join(tmpdir(), 'spotface-jobs-')));
+	await seedDemo(t.db, [], { storage });
 	org = (await t.db.selectFrom('organisation').select('id').where('name', '=', DEMO_ORG).executeTakeFirstOrThrow()).id;
 	surveyId = (
 		await t.db
@@ -385,5 +392,56 @@ describe('exports', () => {
 		const hostile = { ...v, job: { ...v.job, title: '=HYPERLINK("http://x.example")' } };
 		const row = Papa.parse<Record<string, string>>(jobsToCsv([hostile]).replace(/^\uFEFF/, ''), { header: true }).data[0];
 		expect(row.title.startsWith("'=")).toBe(true);
+	});
+});
+
+/** The PDF read back with pdfjs-dist: each page's size, text (white space collapsed) and painted images. */
+async function readPdf(bytes: Uint8Array) {
+	const pdf = await getDocument({ data: bytes.slice(), useSystemFonts: false, isEvalSupported: false }).promise;
+	const pages: Array<{ width: number; height: number; text: string; images: number }> = [];
+	for (let i = 1; i <= pdf.numPages; i++) {
+		const page = await pdf.getPage(i);
+		const [x0, y0, x1, y1] = page.view;
+		const content = await page.getTextContent();
+		const text = content.items
+			.map((it) => ('str' in it ? it.str + (it.hasEOL ? '\n' : '') : ''))
+			.join('')
+			.replace(/\s+/g, ' ');
+		const ops = await page.getOperatorList();
+		pages.push({ width: x1 - x0, height: y1 - y0, text, images: ops.fnArray.filter((op) => op === OPS.paintImageXObject).length });
+	}
+	await pdf.destroy();
+	return pages;
+}
+
+describe('the job pack from the job rows', { timeout: 60_000 }, () => {
+	it('holds every point label, the cautions and the board photo; A4 and Letter', async () => {
+		const views = (await Promise.all(jobIds.map((id) => loadJob(t.db, org, id)))).map((v) => v!);
+		const pump = views.find((v) => v.points.length === 2)!;
+		const photos = await boardPhotos(t.db, storage, org, pump);
+		expect([...photos.values()].filter(Boolean)).toHaveLength(1); // the demo pump's photo
+		const input = jobPackInputOf(pump, photos, { paper: 'A4' });
+		expect(input.points.map((p) => [p.number, p.label])).toEqual(pump.points.map((p) => [p.number, p.label]));
+		expect(input.boards[0].routes.map((r) => r.pointNumber).sort()).toEqual(
+			pump.points
+				.filter((p) => p.route)
+				.map((p) => p.number)
+				.sort()
+		);
+		expect(input.boards[0].zones.map((z) => z.label)).toEqual(['Coupling']);
+
+		const pages = await readPdf(await renderJobPack(input));
+		// ISO 216 A4: 595.28 × 841.89 pt.
+		expect(pages[0].width).toBeCloseTo(595.28, 1);
+		expect(pages[0].height).toBeCloseTo(841.89, 1);
+		const text = pages.map((p) => p.text).join(' ');
+		expect(text).toContain(pump.job.reference);
+		for (const p of pump.points) expect(text).toContain(p.label);
+		for (const c of SAFETY_CAUTIONS) expect(text).toContain(c.text);
+		expect(pages.reduce((n, p) => n + p.images, 0)).toBeGreaterThanOrEqual(1);
+
+		const letter = await readPdf(await renderJobPack(jobPackInputOf(pump, photos, { paper: 'Letter' })));
+		// US Letter: 8.5 × 11 in = 612 × 792 pt.
+		expect([letter[0].width, letter[0].height]).toEqual([612, 792]);
 	});
 });
