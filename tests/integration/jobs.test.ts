@@ -19,6 +19,7 @@ import { transitionSurvey, WorkflowError } from '../../src/lib/server/review/wor
 import { addPoint, addRoute, decidePoint, readBoard } from '../../src/lib/board/model';
 import * as boards from '../../src/lib/server/db/boards';
 import { approvedPointsOfLatestRevision } from '../../src/lib/server/jobs/repository';
+import { dashboardOf } from '../../src/lib/server/jobs/dashboard';
 import { closeJob, issueJobs, JobError, recordPoint } from '../../src/lib/server/jobs/service';
 import { loadJob } from '../../src/lib/server/jobs/view';
 import { jobsToCsv, jobsToJson, pointsToCsv, POINT_CSV_COLUMNS } from '../../src/lib/server/jobs/export';
@@ -276,6 +277,29 @@ describe('the as-installed record', () => {
 		expect(reversed.findings.find((f) => f.rule === 'install.polarity')!.severity).toBe('fail');
 		const stored = await t.db.selectFrom('job_point').select(['worst', 'polarity_ok']).where('id', '=', p1).executeTakeFirstOrThrow();
 		expect(stored).toEqual({ worst: 'fail', polarity_ok: false });
+	});
+
+	it('the overview shows each role what is left: overdue and due jobs, the failing point, machines without an approved survey', async () => {
+		// P1 is failing now (reversed polarity). On 9 December the pump job (due the 8th) is overdue;
+		// the motor job (due the 20th) is not due within the week.
+		const now = new Date(2026, 11, 9, 10, 0);
+		const eng = await dashboardOf(t.db, org, engineer, now);
+		const section = (all: typeof eng, id: string) => all.find((x) => x.id === id);
+		expect(section(eng, 'overdue')!.lines.map((l) => l.href)).toEqual([`/jobs/${pumpJobId}`]);
+		expect(section(eng, 'due')).toBeUndefined();
+		expect(section(eng, 'failing')!.lines.map((l) => l.title)).toEqual(['J-0001 P1']);
+		expect(section(eng, 'failing')!.lines[0].href).toBe(`/jobs/${pumpJobId}#point-${p1}`);
+		const unsurveyed = section(eng, 'unsurveyed')!.lines.map((l) => l.title);
+		expect(unsurveyed.some((x) => x.includes('RW-P01') || x.includes('RW-M01'))).toBe(false);
+		expect(unsurveyed.length).toBeGreaterThan(0);
+		expect(section(eng, 'review')).toBeUndefined();
+
+		const mine = await dashboardOf(t.db, org, tech, now);
+		expect(mine.map((x) => x.id)).toEqual(['failing', 'overdue']);
+		const onTheSeventeenth = await dashboardOf(t.db, org, tech, new Date(2026, 11, 17, 10, 0));
+		expect(section(onTheSeventeenth, 'due')!.lines.map((l) => l.title)[0]).toMatch(/^J-0002/);
+		const readOnly = await dashboardOf(t.db, org, viewer, now);
+		expect(readOnly.map((x) => x.id)).toEqual(['overdue']);
 	});
 
 	it('asks for a reason when the method differs from the plan, and for a baseline after ready', async () => {
