@@ -247,3 +247,18 @@ export function parseQuantity(q: Quantity, raw: string, system: UnitSystem, labe
 	if (!Number.isFinite(n)) return { ok: false, message: `${label} must be a number in ${unit}.` };
 	return { ok: true, si: fromUserUnit(q, n, system) };
 }
+
+const SI_IN_TEXT = /(^|[^\d.])([−-]?\d+(?:\.\d+)?) ?(mm\/s|mm|°C|N·m|m)(?![\w/²³])/g;
+
+/**
+ * A message that names SI values ("must be at most 10000 m, got 3048 m") restated in the
+ * person's units, so an error reads in the unit they typed. Metric text is returned as is.
+ */
+export function restateInUserUnits(text: string, system: UnitSystem, digits = 3): string {
+	if (system === 'metric') return text;
+	return text.replace(SI_IN_TEXT, (_, lead: string, num: string, unit: string) => {
+		const q = quantityOfUnit(unit);
+		const n = Number(num.replace('−', '-'));
+		return q && Number.isFinite(n) ? `${lead}${formatQuantity(q, n, system, digits)}` : `${lead}${num} ${unit}`;
+	});
+}

@@ -15,6 +15,7 @@ import {
 	nmToLbfFt,
 	parseQuantity,
 	quantityOfUnit,
+	restateInUserUnits,
 	toUserUnit,
 	unitLabel,
 	type Quantity
@@ -105,5 +106,21 @@ describe('metric and US customary conversions', () => {
 			}),
 			{ numRuns: 500 }
 		);
+	});
+});
+
+describe('messages restated in the person units', () => {
+	test('SI values in a message read in US units; other units are left alone', () => {
+		// 10000 m / 0.3048 = 32808.399 ft; 150 mm / 25.4 = 5.906 in; 80 °C = 176 °F.
+		expect(restateInUserUnits('lengthM must be at most 10000 m, got 3048 m', 'us')).toBe(
+			'lengthM must be at most 32808.399 ft, got 10000 ft'
+		);
+		expect(restateInUserUnits('check level (75 mm) below fail level (150 mm)', 'us')).toBe(
+			'check level (2.953 in) below fail level (5.906 in)'
+		);
+		expect(restateInUserUnits('above 80 °C at 24 V, 2.5 mm² and 1.2 mm/s, 12 min', 'us')).toBe(
+			'above 176 °F at 24 V, 2.5 mm² and 0.047 in/s, 12 min'
+		);
+		expect(restateInUserUnits('at most 10000 m', 'metric')).toBe('at most 10000 m');
 	});
 });
