@@ -21,7 +21,10 @@ export async function axeViolations(page: Page): Promise<AxeViolation[]> {
 	if (!(await page.evaluate(() => 'axe' in window))) await page.evaluate(AXE_SOURCE);
 	return page.evaluate(async () => {
 		const axe = (window as unknown as { axe: { run: (ctx: unknown, opts: unknown) => Promise<{ violations: unknown[] }> } }).axe;
-		const r = await axe.run(document, { runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa'] }, resultTypes: ['violations'] });
+		const r = await axe.run(document, {
+			runOnly: { type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa'] },
+			resultTypes: ['violations']
+		});
 		return (r.violations as Array<{ id: string; impact: string | null; help: string; nodes: Array<{ target: unknown[] }> }>).map((v) => ({
 			id: v.id,
 			impact: v.impact,
