@@ -1,10 +1,12 @@
 // axe-core on every main page, as each role, on the demo organisation: no serious or critical
-// violation (WCAG 2.0/2.1 A and AA rules). Also: the pages are used at tablet width.
+// violation (WCAG 2.0/2.1 A and AA rules), and every control and stand-alone link at least
+// 44 × 44 px, at tablet width (820 × 1180).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createTestDatabase, type TestDatabase } from '../helpers/db';
 import { startApp, type RunningApp } from '../helpers/app';
 import { openBrowser, signInPage } from '../helpers/browser';
 import { seriousViolations } from '../helpers/axe';
+import { smallTargets } from '../helpers/touch-targets';
 import { seedDemo, DEMO_ORG, DEMO_PASSWORD, DEMO_USERS } from '../../src/lib/server/db/seed';
 import { DEMO_SURVEY } from '../../src/lib/server/db/seed-survey';
 import { createStorage, storageConfigFromEnv } from '../../src/lib/server/storage/index';
@@ -79,6 +81,7 @@ describe('accessibility (axe-core)', () => {
 					expect(res?.status() ?? 0, path).toBeLessThan(500);
 					await b.page.waitForLoadState('load');
 					for (const v of await seriousViolations(b.page)) found.push(`${path}: ${v}`);
+					for (const v of await smallTargets(b.page)) found.push(`${path}: touch target ${v}`);
 				}
 				expect(found.join('\n')).toBe('');
 			} finally {
