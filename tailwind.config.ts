@@ -5,7 +5,7 @@ export default {
 	theme: {
 		extend: {
 			colors: {
-				ink: { DEFAULT: '#17202a', soft: '#3d4a57', faint: '#6b7885' },
+				ink: { DEFAULT: '#17202a', soft: '#3d4a57', faint: '#5d6976' },
 				paper: { DEFAULT: '#ffffff', dim: '#f3f5f7', line: '#d5dbe1' },
 				brand: { DEFAULT: '#1f5f8b', dark: '#174a6c', light: '#e3eef6' },
 				ok: { DEFAULT: '#1d7a3e', light: '#e2f3e8' },

@@ -44,7 +44,7 @@ describe('register a machine in the browser', () => {
 		await page.getByLabel('Tag (optional)').fill('HL-P3');
 		await page.getByLabel('Kind').selectOption('pump');
 		await page.getByLabel('Area', { exact: true }).selectOption({ label: 'High-lift pump house' });
-		await page.getByLabel('Nominal speed (rpm)').fill('1480');
+		await page.getByLabel('Nominal speed (r/min)').fill('1480');
 		await page.getByLabel('Power (kW)').fill('90');
 		await page.locator('input[name="name"]').evaluate((el) => el.removeAttribute('required'));
 		await page.getByRole('button', { name: 'Register machine' }).click();

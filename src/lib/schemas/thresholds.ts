@@ -2,7 +2,18 @@
 // cross-field rules come from the trade module's thresholdsSchema; this adds the checks the
 // settings page needs on top (a strict check-below-fail ordering, plain words for negatives)
 // and turns form strings into numbers without losing what was typed.
-import { DEFAULT_THRESHOLDS, THRESHOLD_KEYS, THRESHOLD_META, thresholdsSchema, type ThresholdKey, type Thresholds } from '../trade';
+import {
+	DEFAULT_THRESHOLDS,
+	THRESHOLD_KEYS,
+	THRESHOLD_META,
+	formatQuantity,
+	parseQuantity,
+	quantityOfUnit,
+	thresholdsSchema,
+	type ThresholdKey,
+	type Thresholds,
+	type UnitSystem
+} from '../trade';
 
 export type ThresholdErrors = Partial<Record<ThresholdKey | '_', string[]>>;
 
@@ -77,7 +88,10 @@ export function validateThresholdOverrides(input: unknown): ThresholdValidation 
  * default". Comma decimals (12,5) are accepted, as tablets in many locales type them.
  * Returns the typed strings so the form can show them again.
  */
-export function parseThresholdForm(form: FormData): {
+export function parseThresholdForm(
+	form: FormData,
+	system: UnitSystem = 'metric'
+): {
 	values: Record<string, string>;
 	result: ThresholdValidation;
 } {
@@ -89,10 +103,36 @@ export function parseThresholdForm(form: FormData): {
 		const text = typeof raw === 'string' ? raw.trim() : '';
 		values[key] = text;
 		if (text === '') continue;
+		const meta = META.get(key)!;
+		const q = quantityOfUnit(meta.unit);
+		if (q) {
+			// Lengths, temperatures and torques arrive in the person's unit; store SI.
+			const parsed = parseQuantity(q, text, system, meta.label);
+			if (!parsed.ok) {
+				add(errors, key, `${parsed.message.replace(/\.$/, '')}; leave it empty for the default.`);
+				continue;
+			}
+			const si = parsed.si!;
+			if (si < 0 && system === 'metric') {
+				add(errors, key, `${meta.label} cannot be negative (got ${text} ${meta.unit}).`);
+				continue;
+			}
+			if (si < meta.min || si > meta.max) {
+				const digits = system === 'us' ? 3 : 4;
+				add(
+					errors,
+					key,
+					`${meta.label} must be ${si < meta.min ? 'at least' : 'at most'} ${formatQuantity(q, si < meta.min ? meta.min : meta.max, system, digits)}.`
+				);
+				continue;
+			}
+			numbers[key] = si;
+			continue;
+		}
 		const normalised = /^-?\d+,\d+$/.test(text) ? text.replace(',', '.') : text;
 		const n = Number(normalised);
 		if (!/^-?(\d+\.?\d*|\.\d+)(e-?\d+)?$/i.test(normalised) || !Number.isFinite(n)) {
-			add(errors, key, `${META.get(key)!.label} must be a number in ${META.get(key)!.unit}; leave it empty for the default.`);
+			add(errors, key, `${meta.label} must be a number in ${meta.unit}; leave it empty for the default.`);
 			continue;
 		}
 		numbers[key] = n;

@@ -1,4 +1,4 @@
-import { requireNumber, requireObject } from './validate';
+import { collectIssues, requireNumber, requireObject } from './validate';
 
 export interface BearingGeometry {
 	/** Number of rolling elements. */
@@ -20,6 +20,23 @@ export interface BearingFrequencies {
 	bpfo: number;
 	/** Ball pass frequency, inner race, Hz. */
 	bpfi: number;
+}
+
+/**
+ * Every problem with a bearing geometry, one message per bad field (each names its field); the
+ * checks between fields run once each field is fine on its own.
+ */
+export function bearingGeometryIssues(g: unknown, field = 'bearing'): string[] {
+	const whole = collectIssues([() => requireObject(field, g)]);
+	if (whole.length) return whole;
+	const o = g as Record<string, unknown>;
+	const each = collectIssues([
+		() => requireNumber(`${field}.balls`, o.balls, { min: 3, max: 200, integer: true }),
+		() => requireNumber(`${field}.ballDiameter`, o.ballDiameter, { min: 0, exclusiveMin: true }),
+		() => requireNumber(`${field}.pitchDiameter`, o.pitchDiameter, { min: 0, exclusiveMin: true }),
+		() => o.contactAngleDeg === undefined || requireNumber(`${field}.contactAngleDeg`, o.contactAngleDeg, { min: 0, max: 90, unit: '°' })
+	]);
+	return each.length ? each : collectIssues([() => assertBearingGeometry(g, field)]);
 }
 
 /** Validates a bearing geometry, throwing a RangeError naming the bad field. */

@@ -4,13 +4,13 @@
  * the formulas and rules of the other trade modules, so a calculator and a survey check never
  * disagree.
  */
-import { bearingFrequencies, type BearingFrequencies, type BearingGeometry } from './bearing';
+import { bearingFrequencies, bearingGeometryIssues, type BearingFrequencies, type BearingGeometry } from './bearing';
 import { cableVoltageDrop, DEFAULT_CONDUCTOR_CLASS, type ConductorClass } from './cable';
 import { evaluatePoint } from './evaluate-point';
 import type { Finding } from './findings';
 import { DEFAULT_THRESHOLDS, usableFrequencyHz, type Thresholds } from './thresholds';
 import { rpmToHz } from './units';
-import { requireNumber } from './validate';
+import { collectIssues, requireNumber } from './validate';
 
 export const DEFECT_KINDS = ['ftf', 'bsf', 'bpfo', 'bpfi'] as const;
 export type DefectKind = (typeof DEFECT_KINDS)[number];
@@ -46,9 +46,16 @@ export interface BearingDefects {
 	orders: BearingFrequencies;
 }
 
+const SPEED_LIMITS = { min: 0, exclusiveMin: true, max: 120_000, unit: 'r/min' } as const;
+
+/** Every problem with the inputs of `bearingDefects`, one message per bad field. */
+export function bearingDefectsIssues(g: unknown, speedRpm: unknown): string[] {
+	return [...bearingGeometryIssues(g), ...collectIssues([() => requireNumber('speedRpm', speedRpm, SPEED_LIMITS)])];
+}
+
 /** Defect frequencies for a geometry at a speed in r/min; throws a RangeError on bad input. */
 export function bearingDefects(g: BearingGeometry, speedRpm: number): BearingDefects {
-	requireNumber('speedRpm', speedRpm, { min: 0, exclusiveMin: true, max: 120_000, unit: 'r/min' });
+	requireNumber('speedRpm', speedRpm, SPEED_LIMITS);
 	const shaftHz = rpmToHz(speedRpm);
 	const hz = bearingFrequencies(g, shaftHz);
 	return {
@@ -117,6 +124,17 @@ export interface CableSupplyCheck {
 	assumedNominal: boolean;
 	/** The rule engine's 'route.supply-voltage' finding for the same run. */
 	finding: Finding;
+}
+
+/** Every problem with the inputs of `cableSupplyCheck`, one message per bad field. */
+export function cableSupplyIssues(c: CableSupplyInput, t: Thresholds = DEFAULT_THRESHOLDS): string[] {
+	const each = collectIssues([
+		() => requireNumber('lengthM', c.lengthM, { min: 0, max: 10_000, unit: 'm' }),
+		() => requireNumber('currentA', c.currentA, { min: 0, max: 100, unit: 'A' }),
+		() => requireNumber('temperatureC', c.temperatureC ?? 20, { min: -60, max: 200, unit: '°C' }),
+		() => c.supplyV === undefined || requireNumber('supplyV', c.supplyV, { min: 0, max: 1000, unit: 'V' })
+	]);
+	return each.length ? each : collectIssues([() => cableSupplyCheck(c, t)]);
 }
 
 /**

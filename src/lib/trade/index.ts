@@ -3,6 +3,7 @@
  * No I/O and no platform APIs, so the browser, the server and the tests share it.
  */
 export * from './units';
+export { collectIssues, requireNumber } from './validate';
 export * from './bearing';
 export * from './cable';
 export * from './severity-zones';

@@ -20,6 +20,20 @@ export const ISO10816_3_BOUNDARIES: Readonly<Record<MachineGroup, Record<Foundat
 	2: { rigid: { ab: 1.4, bc: 2.8, cd: 4.5 }, flexible: { ab: 2.3, bc: 4.5, cd: 7.1 } }
 };
 
+/**
+ * The edition the zone boundaries come from, and what it rests on, in words for the pages.
+ * ISO 10816-3 was first published in 1998 and amended in 2009; ISO 20816-3 (2022, year from
+ * memory) has since replaced it.
+ */
+export const SEVERITY_STANDARD = {
+	edition: 'ISO 10816-3:1998 with Amendment 1:2009',
+	tables: 'Tables A.1 and A.2',
+	restsOn:
+		'The boundary values were read from a published transcription of the tables, not from the standard itself; a site confirms them against its own copy of the standard.',
+	replacedBy:
+		'ISO 20816-3 has replaced ISO 10816-3. A site that works to ISO 20816-3 should check its zone boundaries against that edition before relying on these.'
+} as const;
+
 /** What each zone means, in ISO 10816-3's sense, worded for the site. */
 export const ZONE_MEANING: Readonly<Record<Zone, string>> = {
 	A: 'Typical of newly commissioned machines.',

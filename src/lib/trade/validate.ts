@@ -48,3 +48,20 @@ export function requireObject(field: string, value: unknown): Record<string, unk
 	}
 	return value as Record<string, unknown>;
 }
+
+/**
+ * Runs independent checks and returns the message of every one that fails, so a form can show
+ * all its bad fields at once instead of the first. Errors other than RangeError are rethrown.
+ */
+export function collectIssues(checks: ReadonlyArray<() => unknown>): string[] {
+	const out: string[] = [];
+	for (const check of checks) {
+		try {
+			check();
+		} catch (e) {
+			if (!(e instanceof RangeError)) throw e;
+			out.push(e.message);
+		}
+	}
+	return out;
+}

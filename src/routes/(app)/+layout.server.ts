@@ -10,7 +10,8 @@ export const load: LayoutServerLoad = async ({ locals, url }) => {
 			name: viewer.name,
 			email: viewer.email,
 			role: viewer.role,
-			organisationName: viewer.organisationName
+			organisationName: viewer.organisationName,
+			unitSystem: viewer.unitSystem
 		},
 		nav: NAV.filter((n) => can(viewer.role, n.action)).map(({ href, label }) => ({ href, label }))
 	};

@@ -77,3 +77,24 @@ describe('where an ordering error lands', () => {
 		}
 	});
 });
+
+describe('thresholds typed in US customary units', () => {
+	test('are stored in SI; values shown for the defaults come back as the defaults', () => {
+		// 1 in = 25.4 mm and 1 lbf·ft = 1.3558179483 N·m (NIST SP 811, B.8); °F = °C × 9/5 + 32.
+		const { result } = parseThresholdForm(
+			form({ minFlatDiameterMm: '1.1811', distanceWarnMm: '2', maxSurfaceTempC: '212', studTorqueLimitNm: '7.3756' }),
+			'us'
+		);
+		expect(result).toEqual({ ok: true, overrides: { distanceWarnMm: 50.8, maxSurfaceTempC: 100 } });
+	});
+
+	test('a value out of range is reported in the unit it was typed in', () => {
+		const { result } = parseThresholdForm(form({ minFlatDiameterMm: '10', maxSurfaceTempC: 'warm' }), 'us');
+		expect(result.ok).toBe(false);
+		if (!result.ok) {
+			// The largest flat seat allowed is 200 mm = 7.874 in.
+			expect(result.errors.minFlatDiameterMm?.[0]).toBe('Smallest flat seat diameter must be at most 7.874 in.');
+			expect(result.errors.maxSurfaceTempC?.[0]).toMatch(/must be a number in °F/);
+		}
+	});
+});

@@ -16,7 +16,7 @@ export function createAuth(pool: pg.Pool, opts: { secure: boolean; sessionDays?:
 			attributes: { secure: opts.secure, sameSite: 'lax' }
 		},
 		getSessionAttributes: (a) => ({ organisationId: a.organisation_id }),
-		getUserAttributes: (a) => ({ email: a.email, name: a.name })
+		getUserAttributes: (a) => ({ email: a.email, name: a.name, unitSystem: a.unit_system === 'us' ? ('us' as const) : ('metric' as const) })
 	});
 }
 
@@ -26,7 +26,7 @@ declare module 'lucia' {
 	interface Register {
 		Lucia: ReturnType<typeof createAuth>;
 		DatabaseSessionAttributes: { organisation_id: string };
-		DatabaseUserAttributes: { email: string; name: string };
+		DatabaseUserAttributes: { email: string; name: string; unit_system?: string };
 	}
 }
 
@@ -38,6 +38,8 @@ export interface Viewer {
 	organisationName: string;
 	role: Role;
 	sessionId: string;
+	/** How this person reads and types measurements (stored values are SI). */
+	unitSystem: 'metric' | 'us';
 }
 
 /** Parse the session cookie out of a raw Cookie header (used by the socket handshake). */

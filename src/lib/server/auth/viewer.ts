@@ -22,7 +22,8 @@ export async function viewerFromSession(auth: Auth, db: DB, sessionId: string | 
 			organisationId: session.organisationId,
 			organisationName: member.organisation_name,
 			role: member.role,
-			sessionId: session.id
+			sessionId: session.id,
+			unitSystem: user.unitSystem
 		}
 	};
 }

@@ -17,6 +17,8 @@ export interface AppUserTable {
 	name: string;
 	password_hash: string;
 	created_at: Generated<Timestamp>;
+	/** How this person reads and types measurements; stored values stay SI. */
+	unit_system: Generated<'metric' | 'us'>;
 }
 
 export interface MemberTable {

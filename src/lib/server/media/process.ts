@@ -81,7 +81,7 @@ function ascii(b: Uint8Array, from: number, to: number) {
 }
 
 /** A plain-words name for a file we refuse, for the error message. */
-export function describe(b: Uint8Array): string {
+export function describe(b: Uint8Array): string | null {
 	const head = Buffer.from(b.subarray(0, 512))
 		.toString('utf8')
 		.replace(/^\uFEFF/, '')
@@ -101,7 +101,7 @@ export function describe(b: Uint8Array): string {
 	if (ascii(b, 0, 4) === 'II*\u0000' || ascii(b, 0, 4) === 'MM\u0000*') return 'a TIFF image';
 	if (ascii(b, 0, 4) === 'PK\u0003\u0004') return 'a ZIP or office document';
 	if (b.length === 0) return 'an empty file';
-	return 'a file of an unknown type';
+	return null;
 }
 
 const mb = (n: number) => `${(n / 1024 / 1024).toFixed(n < 10 * 1024 * 1024 ? 1 : 0)} MB`;
@@ -117,7 +117,10 @@ export async function processMedia(bytes: Buffer, limits: MediaLimits = DEFAULT_
 	if (bytes.length === 0) throw new MediaError(422, 'The file is empty.');
 	if (bytes.length > limits.maxBytes) throw new MediaError(413, `The file is ${mb(bytes.length)}; the limit is ${mb(limits.maxBytes)}.`);
 	const type = sniff(bytes);
-	if (!type) throw new MediaError(415, `This file is ${describe(bytes)}. ${ACCEPTED}`);
+	if (!type) {
+		const kind = describe(bytes);
+		throw new MediaError(415, `${kind ? `This file is ${kind}.` : 'Spotface cannot tell what kind of file this is.'} ${ACCEPTED}`);
+	}
 
 	let source: Buffer;
 	let sourceOptions: SharpOptions;

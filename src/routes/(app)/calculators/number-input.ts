@@ -52,3 +52,17 @@ export function explainRangeError<K extends string>(
 	message = message.charAt(0).toUpperCase() + message.slice(1);
 	return { field, message: /[.!?]$/.test(message) ? message : `${message}.` };
 }
+
+/** One message per field from a list of trade messages (each names its field), the first for each field. */
+export function issuesByField<K extends string>(
+	messages: string[],
+	names: Record<K, { path: string; label: string }>,
+	fallback: NoInfer<K>
+): Partial<Record<K, string>> {
+	const out: Partial<Record<K, string>> = {};
+	for (const m of messages) {
+		const x = explainRangeError(new RangeError(m), names);
+		out[x.field ?? fallback] ??= x.message;
+	}
+	return out;
+}

@@ -1,5 +1,6 @@
 import { fail } from '@sveltejs/kit';
 import { firstErrors, parseThresholdForm } from '$lib/schemas/thresholds';
+import { unitSystemOfForm } from '$lib/schemas/units';
 import { requirePage } from '$lib/server/auth/require';
 import { can } from '$lib/server/auth/guard';
 import { context } from '$lib/server/context';
@@ -20,7 +21,8 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 export const actions: Actions = {
 	save: async ({ locals, request, url }) => {
 		const viewer = requirePage(locals, 'thresholds.edit', url);
-		const { values, result } = parseThresholdForm(await request.formData());
+		const formData = await request.formData();
+		const { values, result } = parseThresholdForm(formData, unitSystemOfForm(formData, viewer.unitSystem));
 		if (!result.ok) return fail(400, { action: 'save' as const, values, errors: firstErrors(result.errors) });
 		const saved = await saveThresholds(context().handle.db, viewer.organisationId, result.overrides, { userId: viewer.userId });
 		if (!saved.ok) return fail(400, { action: 'save' as const, values, errors: firstErrors(saved.errors) });
