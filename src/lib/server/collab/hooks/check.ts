@@ -14,7 +14,7 @@ import type { BoardRoom, RoomMember } from '../room';
 import { kib, spend } from '../budget';
 import { catchUpShadow, decodeUpdateStrict, isCoveredBy, isEmptyUpdate, type DecodedUpdate } from '../update-check';
 import { ensureOwnership, structClientIds } from '../client-ids';
-import { overBudget, refused, stored } from './acknowledge';
+import { overBudget, refused } from './acknowledge';
 
 /**
  * The checks that need nothing but the message and the room, run at once; a Malformed throw
@@ -25,7 +25,7 @@ export function checkUpdate(
 	room: BoardRoom,
 	member: RoomMember,
 	update: Uint8Array
-): { ok: true; decoded: DecodedUpdate } | { ok: false; ack: MessageAck } {
+): { ok: true; decoded: DecodedUpdate } | { ok: false; ack: MessageAck } | { ok: false; covered: true } {
 	const { options, log } = ctx;
 	const size = update.byteLength;
 	if (size > options.maxUpdateBytes) {
@@ -43,8 +43,10 @@ export function checkUpdate(
 	} catch (e) {
 		throw new Malformed(`update does not decode: ${(e as Error).message}`);
 	}
-	// Nothing new (e.g. a read-only member's sync step 2 after a reconnect): nothing to store.
-	if (isEmptyUpdate(decoded) || isCoveredBy(room.doc, decoded)) return { ok: false, ack: stored() };
+	// Nothing new (e.g. a read-only member's sync step 2 after a reconnect, or a change sent again
+	// that the room already shows): nothing to store, but the answer "stored" waits for what the
+	// room holds to be stored (receive.ts).
+	if (isEmptyUpdate(decoded) || isCoveredBy(room.doc, decoded)) return { ok: false, covered: true };
 	if (member.readOnly) return { ok: true, decoded };
 	if (!room.size.fits(room.doc, size, options.maxDocumentBytes)) {
 		log.warn(`[collab] refused an update from ${who(member.socket)}: the board would pass ${options.maxDocumentBytes} bytes`);
