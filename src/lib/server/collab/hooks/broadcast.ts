@@ -6,17 +6,17 @@ import * as Y from 'yjs';
 import { EVENT_MESSAGE, roomOf } from '../../../board/sync/protocol';
 import { syncUpdateFrame } from '../../../board/sync/frames';
 import type { CollabContext } from '../context';
-import { ORIGIN_RELAY, ORIGIN_STORAGE, type BoardRoom } from '../room';
+import { ORIGIN_CHECKED, ORIGIN_RELAY, ORIGIN_STORAGE, type BoardRoom } from '../room';
 import { RELAY_UPDATE } from '../cluster';
 
 /**
  * A checked update, before it is stored: into the document and out to the room here (but the
  * sender). The other processes get it once it is stored (relayStored), with its log seq.
  */
-export function applyChecked(ctx: CollabContext, room: BoardRoom, update: Uint8Array, exceptSocket: string | null) {
+export function applyChecked(ctx: CollabContext, room: BoardRoom, update: Uint8Array, exceptSocket: string | null, inShadow = true) {
 	room.size.grew(update.byteLength);
 	try {
-		Y.applyUpdate(room.doc, update, ORIGIN_STORAGE);
+		Y.applyUpdate(room.doc, update, inShadow ? ORIGIN_CHECKED : ORIGIN_STORAGE);
 	} catch (e) {
 		ctx.log.error(`[collab] board ${room.id}: checked update did not apply: ${(e as Error).message}`);
 	}
@@ -36,7 +36,7 @@ export function relayStored(ctx: CollabContext, room: BoardRoom, seq: string, up
 /** After storage (an update not shown before): into the document, out to the room here and elsewhere. */
 export function publishStored(ctx: CollabContext, room: BoardRoom, seq: string, update: Uint8Array, exceptSocket: string | null) {
 	room.seen.add(seq);
-	applyChecked(ctx, room, update, exceptSocket);
+	applyChecked(ctx, room, update, exceptSocket, false);
 	relayStored(ctx, room, seq, update);
 }
 

@@ -59,9 +59,10 @@ export function checkUpdate(
 }
 
 /**
- * The member's rights over the change: the board policy, then client-id ownership. Null when it
- * may be stored, else the reason in words for the person. Runs in the member's queue (after
- * its earlier updates were checked), since both depend on what came before.
+ * The member's rights over the change: the board policy, then client-id ownership. The reason in
+ * words for the person when it may not be stored; else which shadow copy holds it already (null:
+ * none, the member is read-only). Runs in the member's queue (after its earlier updates were
+ * checked), since both depend on what came before.
  */
 export async function checkRights(
 	ctx: CollabContext,
@@ -69,14 +70,15 @@ export async function checkRights(
 	member: RoomMember,
 	update: Uint8Array,
 	decoded: DecodedUpdate
-): Promise<string | null> {
-	if (member.readOnly) return null; // the store's own check refuses it with the reason
+): Promise<string | { shadowGen: number | null }> {
+	if (member.readOnly) return { shadowGen: null }; // the store's own check refuses it with the reason
 	const refusal = checkPolicy(ctx, room, member, update);
 	if (refusal) {
 		ctx.log.warn(`[collab] refused an update from ${who(member.socket)}: ${refusal}`);
 		return refusal;
 	}
-	return checkClientIds(ctx, room, member, decoded);
+	const shadowGen = room.shadowGen;
+	return (await checkClientIds(ctx, room, member, decoded)) ?? { shadowGen };
 }
 
 /**
@@ -85,7 +87,8 @@ export async function checkRights(
  */
 function checkPolicy(ctx: CollabContext, room: BoardRoom, member: RoomMember, update: Uint8Array): string | null {
 	if (!room.shadow) room.shadow = cloneDoc(room.doc);
-	else catchUpShadow(room.shadow, room.doc);
+	else if (room.shadowBehind) catchUpShadow(room.shadow, room.doc);
+	room.shadowBehind = false;
 	const { options } = ctx;
 	const r = checkBoardChange(
 		room.doc,

@@ -64,11 +64,11 @@ function handle(
 					);
 					return;
 				}
-				const refusal = await checkRights(ctx, room, member, update, checked.decoded);
-				if (refusal) return reply(refused(refusal));
+				const verdict = await checkRights(ctx, room, member, update, checked.decoded);
+				if (typeof verdict === 'string') return reply(refused(verdict));
 				// Handed to the writer now, in order (it commits in that order); the commit is
 				// awaited apart from the queue, so one member's updates still share group commits.
-				void storeUpdate(ctx, room, member, update, reply).catch(failed);
+				void storeUpdate(ctx, room, member, update, reply, verdict.shadowGen).catch(failed);
 			});
 		}
 		case 'awareness': {

@@ -19,7 +19,15 @@ import { applyChecked, publishStored, relayStored } from './broadcast';
 import { noteStored, resetRoom } from './unload';
 import { refused, storageAway, stored, type Reply } from './acknowledge';
 
-export async function storeUpdate(ctx: CollabContext, room: BoardRoom, member: RoomMember, update: Uint8Array, reply: Reply) {
+/** `shadowGen`: the shadow copy the board policy tried the update on (room.ts), if any. */
+export async function storeUpdate(
+	ctx: CollabContext,
+	room: BoardRoom,
+	member: RoomMember,
+	update: Uint8Array,
+	reply: Reply,
+	shadowGen: number | null
+) {
 	const item = {
 		boardId: room.id,
 		organisationId: member.viewer.organisationId,
@@ -37,7 +45,7 @@ export async function storeUpdate(ctx: CollabContext, room: BoardRoom, member: R
 			return reply(storageAway());
 		}
 		// Checked: into the document and out to the peers now, in the order the writer gets it.
-		applyChecked(ctx, room, update, member.socket.id);
+		applyChecked(ctx, room, update, member.socket.id, shadowGen !== null && shadowGen === room.shadowGen && room.shadow !== null);
 	}
 	let seq: string | null;
 	let access: BoardAccess | null | undefined;
