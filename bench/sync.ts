@@ -371,7 +371,7 @@ async function main() {
 					return { doc: p.doc, onUnacked: (cb) => p.on('unsynced', (n: number) => cb(n)), destroy: () => p.destroy() };
 				},
 				{
-					dataDir: '.data/pg-sync',
+					dataDir: '.data/pg-sync/data',
 					wal: async () => Number((await sql<{ b: string }>`select wal_bytes::text as b from pg_stat_wal`.execute(t.db)).rows[0].b),
 					logBytes: async () => {
 						const r = await sql<{ n: string; avg: string | null }>`
@@ -435,13 +435,13 @@ async function main() {
 			);
 			console.log(`  cold load of a compacted ${COLD}-update board: ${r.cold}`);
 		}
-		const ref = results.reference;
+		const theirs = results.reference;
 		const ours = results.spotface;
-		if (ref && ours) {
+		if (theirs && ours) {
 			console.log('');
 			console.log('goals (Spotface against the reference, same run):');
 			ours.steps.forEach((s, i) => {
-				const r = ref.steps[i];
+				const r = theirs.steps[i];
 				const ratio = pct(s.peer, 99) / pct(r.peer, 99);
 				const cpu = s.serverCpu / r.serverCpu;
 				console.log(
