@@ -236,9 +236,10 @@ async function runServer(
 		peer = [];
 		ack = [];
 		deliveries = 0;
-		const pgPids = pg ? clusterPids(pg.dataDir) : [];
+		// PostgreSQL: per process, what each used while measuring (a process that started
+		// meanwhile counts from zero; one that ended meanwhile is not counted).
+		const pg0 = new Map((pg ? clusterPids(pg.dataDir) : []).map((x) => [x, cpuSeconds(x)]));
 		const cpu0 = cpuSeconds(pid);
-		const pg0 = pgPids.reduce((s, x) => s + cpuSeconds(x), 0);
 		const wal0 = pg ? await pg.wal() : 0;
 		const bench0 = process.cpuUsage();
 		let rssPeak = rssMB(pid);
@@ -250,7 +251,9 @@ async function runServer(
 		const wall = (now() - t0) / 1000;
 		clearInterval(sampler);
 		const serverCpu = (100 * (cpuSeconds(pid) - cpu0)) / wall;
-		const pgCpu = pg ? (100 * (pgPids.reduce((s, x) => s + cpuSeconds(x), 0) - pg0)) / wall : null;
+		const pgCpu = pg
+			? (100 * clusterPids(pg.dataDir).reduce((sum, x) => sum + Math.max(0, cpuSeconds(x) - (pg0.get(x) ?? 0)), 0)) / wall
+			: null;
 		const walBytes = pg ? (await pg.wal()) - wal0 : 0;
 		const b1 = process.cpuUsage(bench0);
 		running = false;
