@@ -1,7 +1,8 @@
 // Live board benchmark: 20 boards × 6 clients, each client making 0.5 edits/s (exponential
 // gaps), all through the one sync client (BoardProvider) against the built app on a fresh test
 // database. Prints the latency from an edit to its arrival at each other client of the board
-// (p50/p95/p99/max), a confirmation that every edit received had already been stored, and the
+// (p50/p95/p99/max), how many of the edits received were already committed (peers may see an
+// edit before its commit; the writer's acknowledgement waits for it), and the
 // server's memory before, during and after.
 //
 // It runs on a private PostgreSQL cluster of its own (.data/pg-bench, port 54349, a fresh
@@ -269,8 +270,8 @@ async function main() {
 		console.log(`   max ${fmt(latencies[latencies.length - 1] ?? NaN)}`);
 		console.log(`   over 10 ms: ${((100 * latencies.filter((x) => x > 10).length) / Math.max(1, latencies.length)).toFixed(2)} %`);
 		console.log(
-			`stored before broadcast: ${probesStored} of ${probes} received edits were found in PostgreSQL by a query sent on arrival` +
-				` (the server appends and commits each update before it sends it anywhere)`
+			`committed on arrival: ${probesStored} of ${probes} received edits were found in PostgreSQL by a query sent on arrival` +
+				` (peers see an update once it has passed the checks, before its commit; the writer is acknowledged after it)`
 		);
 		console.log(`boards converged: ${converged} of ${BOARDS}; log rows at the end: ${storedRows}`);
 		apps.forEach((a, i) => {

@@ -8,7 +8,7 @@
 // fresh database each run, stopped at the end) against the built app with the default limits;
 // `--no-limits` lifts the byte budgets and size limits to show what they prevent.
 //
-//   npm run bench:flood -- [--seconds 16] [--size 65536] [--rate 14] [--edits 5] [--no-limits]
+//   npm run bench:flood -- [--seconds 16] [--size 65536] [--rate 14] [--edits 5] [--no-limits] [--profile dir]
 //
 // Hold the build lock, as the integration tests do (it uses build/):
 //   flock /tmp/build.lock npx tsx bench/flood.ts
@@ -33,7 +33,9 @@ const { values: args } = parseArgs({
 		size: { type: 'string', default: String(64 * 1024) },
 		rate: { type: 'string', default: '14' },
 		edits: { type: 'string', default: '5' },
-		'no-limits': { type: 'boolean', default: false }
+		'no-limits': { type: 'boolean', default: false },
+		// Writes a CPU profile of the server to this folder (node --cpu-prof).
+		profile: { type: 'string' }
 	}
 });
 const SECONDS = Number(args.seconds);
@@ -90,7 +92,11 @@ async function main() {
 	const providers: BoardProvider[] = [];
 	let flooder: Socket | null = null;
 	try {
-		app = await startApp({ databaseUrl: url, env: LIMITS ? {} : unlimited });
+		app = await startApp({
+			databaseUrl: url,
+			env: LIMITS ? {} : unlimited,
+			nodeArgs: args.profile ? ['--cpu-prof', `--cpu-prof-dir=${args.profile}`] : []
+		});
 		const pid = app.process.pid!;
 		const f = await createBoardFixture(t.db, { boards: 2 });
 		const [floodBoard, quietBoard] = f.boardIds;

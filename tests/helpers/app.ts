@@ -32,11 +32,13 @@ export async function startApp(opts: {
 	env?: Record<string, string>;
 	port?: number;
 	dataDir?: string;
+	/** Extra node flags (benchmarks: --cpu-prof and the like, which NODE_OPTIONS does not take). */
+	nodeArgs?: string[];
 }): Promise<RunningApp> {
 	const port = opts.port ?? (await freePort());
 	const url = `http://127.0.0.1:${port}`;
 	const dataDir = opts.dataDir ?? mkdtempSync(join(tmpdir(), 'spotface-data-'));
-	const child = spawn('node', ['server/index.js'], {
+	const child = spawn('node', [...(opts.nodeArgs ?? []), 'server/index.js'], {
 		env: {
 			...process.env,
 			NODE_ENV: 'production',

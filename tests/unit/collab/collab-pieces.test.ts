@@ -126,56 +126,109 @@ describe('UpdateWriter', () => {
 });
 
 describe('UpdateWriter when the database stays away', () => {
-	const item = (n: number): PendingUpdate => ({
-		boardId: 'b',
+	const item = (n: number, boardId = 'b'): PendingUpdate => ({
+		boardId,
 		organisationId: 'o',
 		userId: 'u',
 		sessionId: 's',
 		update: new Uint8Array([n])
 	});
+	const quiet = async (run: () => Promise<void>) => {
+		const errors = console.error;
+		console.error = () => {};
+		try {
+			await run();
+		} finally {
+			console.error = errors;
+		}
+	};
 
-	it('gives up after its tries, rejects with StorageUnavailable, reports down and comes back up by probing', async () => {
+	it('gives up after its tries (StorageUnavailable, reports down), keeps the update and stores it once the database is back', async () => {
 		let failing = true;
 		let attempts = 0;
-		let probes = 0;
 		const reports: string[] = [];
+		const stored: number[] = [];
 		const writer = new UpdateWriter(
-			{
-				query: async () => {
-					probes++;
-					if (failing) throw new Error('connect ECONNREFUSED');
-					return {} as never;
-				}
-			},
+			{ query: async () => ({}) as never },
 			500,
 			async (_db, items) => {
 				attempts++;
 				if (failing) throw new Error('connect ECONNREFUSED');
-				return items.map(() => 'seq1');
+				stored.push(...items.map((i) => i.update[0]));
+				return items.map((i) => `seq${i.update[0]}`);
 			},
-			{ attempts: 2, baseDelayMs: 1, probeMs: 5 },
+			{ attempts: 2, baseDelayMs: 1, maxDelayMs: 5 },
 			(_part, status) => reports.push(status)
 		);
-		const errors = console.error;
-		console.error = () => {};
-		try {
+		await quiet(async () => {
 			await expect(writer.enqueue(item(1))).rejects.toBeInstanceOf(StorageUnavailable);
 			expect(attempts).toBe(2);
 			expect(writer.down).toBe(true);
 			expect(reports).toEqual(['down']);
-			// Nothing else arrives; the writer notices by itself when the database is back.
+			// Meanwhile the board takes nothing new, and "is everything stored?" is answered no.
+			expect(writer.accepting('b')).toBe(false);
+			expect(writer.accepting('other')).toBe(true);
+			await expect(writer.stored('b')).rejects.toBeInstanceOf(StorageUnavailable);
+			// It keeps trying by itself and stores the kept update when the database is back.
 			await new Promise((r) => setTimeout(r, 30));
-			expect(probes).toBeGreaterThan(0);
-			expect(writer.down).toBe(true);
+			expect(attempts).toBeGreaterThan(2);
 			failing = false;
-			for (let i = 0; i < 100 && writer.down; i++) await new Promise((r) => setTimeout(r, 5));
+			for (let i = 0; i < 200 && writer.down; i++) await new Promise((r) => setTimeout(r, 5));
 			expect(writer.down).toBe(false);
 			expect(reports.at(-1)).toBe('up');
-			await expect(writer.enqueue(item(2))).resolves.toBe('seq1');
-		} finally {
-			console.error = errors;
-			await writer.close();
-		}
+			expect(stored).toEqual([1]);
+			expect(writer.accepting('b')).toBe(true);
+			await expect(writer.enqueue(item(2))).resolves.toBe('seq2');
+		});
+		await writer.close();
+	});
+
+	it('one board whose write fails does not hold up the others', async () => {
+		const calls: string[][] = [];
+		const writer = new UpdateWriter(
+			{ query: async () => ({}) as never },
+			500,
+			async (_db, items) => {
+				calls.push(items.map((i) => `${i.boardId}${i.update[0]}`));
+				if (items.some((i) => i.boardId === 'bad')) throw new Error('lock timeout');
+				return items.map((i) => `${i.boardId}${i.update[0]}`);
+			},
+			{ attempts: 3, baseDelayMs: 50, maxDelayMs: 50 },
+			() => {}
+		);
+		await quiet(async () => {
+			const bad = writer.enqueue(item(1, 'bad')).catch((e) => e);
+			const good = [writer.enqueue(item(1, 'x')), writer.enqueue(item(1, 'y'))];
+			const started = performance.now();
+			await expect(Promise.all(good)).resolves.toEqual(['x1', 'y1']);
+			// The first batch held all three; after it failed, the good boards went on at once
+			// (within the first back-off) and the bad one alone.
+			expect(performance.now() - started).toBeLessThan(200);
+			const later = await writer.enqueue(item(2, 'x'));
+			expect(later).toBe('x2');
+			expect(await bad).toBeInstanceOf(StorageUnavailable);
+			expect(calls.filter((c) => c.includes('bad1') && c.length > 1).length).toBeLessThanOrEqual(1);
+		});
+		await writer.close();
+	});
+
+	it('answers "stored" for a board only once what it took before is stored, in order', async () => {
+		let release!: () => void;
+		const gate = new Promise<void>((r) => (release = r));
+		const writer = new UpdateWriter({ query: async () => ({}) as never }, 500, async (_db, items) => {
+			await gate;
+			return items.map((i) => `seq${i.update[0]}`);
+		});
+		const events: string[] = [];
+		await writer.stored('b').then(() => events.push('empty board: at once'));
+		const first = writer.enqueue(item(1)).then(() => events.push('1 stored'));
+		const barrier = writer.stored('b').then(() => events.push('barrier'));
+		await new Promise((r) => setTimeout(r, 10));
+		expect(events).toEqual(['empty board: at once']);
+		release();
+		await Promise.all([first, barrier]);
+		expect(events).toEqual(['empty board: at once', '1 stored', 'barrier']);
+		await writer.close();
 	});
 });
 

@@ -28,10 +28,14 @@ export interface Queryable {
 	query<R extends pg.QueryResultRow>(config: pg.QueryConfig): Promise<pg.QueryResult<R>>;
 }
 
+// The bodies travel as one binary parameter ($2, sliced by $7 offsets and $8 lengths): an array
+// of bytea would go as text, every byte as two hex digits, built and escaped on the event loop
+// and parsed again by PostgreSQL.
 const APPEND_SQL = `
 	with v as (
-		select * from unnest($1::uuid[], $2::bytea[], $3::text[], $4::text[], $5::uuid[])
-			with ordinality as v(board_id, body, user_id, session_id, organisation_id, idx)
+		select v.board_id, substring($2::bytea from v.off for v.len) as body, v.user_id, v.session_id, v.organisation_id, v.idx
+		from unnest($1::uuid[], $7::int[], $8::int[], $3::text[], $4::text[], $5::uuid[])
+			with ordinality as v(board_id, off, len, user_id, session_id, organisation_id, idx)
 	), ok as materialized (
 		select v.idx, v.board_id, v.body, v.user_id, nextval('board_update_seq_seq') as seq
 		from v
@@ -63,16 +67,27 @@ const APPEND_SQL = `
  */
 export async function appendUpdates(db: Queryable, items: PendingUpdate[]): Promise<(string | null)[]> {
 	if (items.length === 0) return [];
+	const offsets: number[] = [];
+	const lengths: number[] = [];
+	let at = 1;
+	for (const i of items) {
+		offsets.push(at);
+		lengths.push(i.update.byteLength);
+		at += i.update.byteLength;
+	}
+	const bodies = items.length === 1 ? toBuffer(items[0].update) : Buffer.concat(items.map((i) => toBuffer(i.update)));
 	const r = await db.query<{ idx: string; seq: string }>({
-		name: 'spotface_append_board_updates',
+		name: 'spotface_append_board_updates_v2',
 		text: APPEND_SQL,
 		values: [
 			items.map((i) => i.boardId),
-			items.map((i) => toBuffer(i.update)),
+			bodies,
 			items.map((i) => i.userId),
 			items.map((i) => i.sessionId),
 			items.map((i) => i.organisationId),
-			WRITABLE_PAIRS
+			WRITABLE_PAIRS,
+			offsets,
+			lengths
 		]
 	});
 	const out: (string | null)[] = items.map(() => null);

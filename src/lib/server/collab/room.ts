@@ -11,6 +11,8 @@ import type { CollabOptions } from './config';
 
 /** Origins of changes to a room's document and presence. */
 export const ORIGIN_STORAGE = 'storage';
+/** An update that passed the board policy on the shadow copy, which therefore holds it already. */
+export const ORIGIN_CHECKED = 'checked';
 export const ORIGIN_RELAY = 'relay';
 export const ORIGIN_CATCH_UP = 'catch-up';
 export const ORIGIN_LEAVE = 'leave';
@@ -52,6 +54,15 @@ export class BoardRoom {
 	early: Array<{ seq: string; update: Uint8Array }> = [];
 	/** A copy of the document to try updates on with the board policy before they are accepted. */
 	shadow: Y.Doc | null = null;
+	/**
+	 * The document took a change the shadow has not seen (relayed, caught up, stored for a member
+	 * who was read-only): bring the shadow up to date before the next check. Otherwise the
+	 * shadow already holds everything (each checked update was tried on it first), and the
+	 * catch-up, which encodes the document's whole delete set, is skipped.
+	 */
+	shadowBehind = true;
+	/** Counts shadow copies: an update checked on an earlier one is not in the current one. */
+	shadowGen = 0;
 	/** Who introduced which Yjs client id on this board (filled as ids are looked up or claimed). */
 	readonly owners = new Map<number, string>();
 	/** Bytes of updates all sockets of the board may send here (budget.ts). */
@@ -63,6 +74,9 @@ export class BoardRoom {
 		options: CollabOptions
 	) {
 		this.bytes = new ByteBucket(options.boardBytesPerSecond, options.boardByteBurst);
+		this.doc.on('afterTransaction', (tr: Y.Transaction) => {
+			if (tr.origin !== ORIGIN_CHECKED) this.shadowBehind = true;
+		});
 		// The server is not a participant: no presence of its own.
 		this.awareness.setLocalState(null);
 	}
@@ -78,6 +92,7 @@ export class BoardRoom {
 	dropShadow() {
 		this.shadow?.destroy();
 		this.shadow = null;
+		this.shadowGen++;
 	}
 
 	/** The member whose presence uses this client id, if any. */

@@ -14,7 +14,7 @@ import type { BoardRoom, RoomMember } from '../room';
 import { kib, spend } from '../budget';
 import { catchUpShadow, decodeUpdateStrict, isCoveredBy, isEmptyUpdate, type DecodedUpdate } from '../update-check';
 import { ensureOwnership, structClientIds } from '../client-ids';
-import { overBudget, refused, stored } from './acknowledge';
+import { overBudget, refused } from './acknowledge';
 
 /**
  * The checks that need nothing but the message and the room, run at once; a Malformed throw
@@ -25,7 +25,7 @@ export function checkUpdate(
 	room: BoardRoom,
 	member: RoomMember,
 	update: Uint8Array
-): { ok: true; decoded: DecodedUpdate } | { ok: false; ack: MessageAck } {
+): { ok: true; decoded: DecodedUpdate } | { ok: false; ack: MessageAck } | { ok: false; covered: true } {
 	const { options, log } = ctx;
 	const size = update.byteLength;
 	if (size > options.maxUpdateBytes) {
@@ -43,8 +43,10 @@ export function checkUpdate(
 	} catch (e) {
 		throw new Malformed(`update does not decode: ${(e as Error).message}`);
 	}
-	// Nothing new (e.g. a read-only member's sync step 2 after a reconnect): nothing to store.
-	if (isEmptyUpdate(decoded) || isCoveredBy(room.doc, decoded)) return { ok: false, ack: stored() };
+	// Nothing new (e.g. a read-only member's sync step 2 after a reconnect, or a change sent again
+	// that the room already shows): nothing to store, but the answer "stored" waits for what the
+	// room holds to be stored (receive.ts).
+	if (isEmptyUpdate(decoded) || isCoveredBy(room.doc, decoded)) return { ok: false, covered: true };
 	if (member.readOnly) return { ok: true, decoded };
 	if (!room.size.fits(room.doc, size, options.maxDocumentBytes)) {
 		log.warn(`[collab] refused an update from ${who(member.socket)}: the board would pass ${options.maxDocumentBytes} bytes`);
@@ -57,9 +59,10 @@ export function checkUpdate(
 }
 
 /**
- * The member's rights over the change: the board policy, then client-id ownership. Null when it
- * may be stored, else the reason in words for the person. Runs in the member's queue (after
- * its earlier updates were checked), since both depend on what came before.
+ * The member's rights over the change: the board policy, then client-id ownership. The reason in
+ * words for the person when it may not be stored; else which shadow copy holds it already (null:
+ * none, the member is read-only). Runs in the member's queue (after its earlier updates were
+ * checked), since both depend on what came before.
  */
 export async function checkRights(
 	ctx: CollabContext,
@@ -67,14 +70,15 @@ export async function checkRights(
 	member: RoomMember,
 	update: Uint8Array,
 	decoded: DecodedUpdate
-): Promise<string | null> {
-	if (member.readOnly) return null; // the store's own check refuses it with the reason
+): Promise<string | { shadowGen: number | null }> {
+	if (member.readOnly) return { shadowGen: null }; // the store's own check refuses it with the reason
 	const refusal = checkPolicy(ctx, room, member, update);
 	if (refusal) {
 		ctx.log.warn(`[collab] refused an update from ${who(member.socket)}: ${refusal}`);
 		return refusal;
 	}
-	return checkClientIds(ctx, room, member, decoded);
+	const shadowGen = room.shadowGen;
+	return (await checkClientIds(ctx, room, member, decoded)) ?? { shadowGen };
 }
 
 /**
@@ -83,7 +87,8 @@ export async function checkRights(
  */
 function checkPolicy(ctx: CollabContext, room: BoardRoom, member: RoomMember, update: Uint8Array): string | null {
 	if (!room.shadow) room.shadow = cloneDoc(room.doc);
-	else catchUpShadow(room.shadow, room.doc);
+	else if (room.shadowBehind) catchUpShadow(room.shadow, room.doc);
+	room.shadowBehind = false;
 	const { options } = ctx;
 	const r = checkBoardChange(
 		room.doc,

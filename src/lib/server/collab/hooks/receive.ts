@@ -1,6 +1,6 @@
 // One frame from a joined socket through the pipeline: parse (frames.ts; malformed → the socket
 // is closed) → for a sync request, answer with what the socket lacks; for an update, check →
-// store → broadcast → acknowledge; for presence, sanitise and relay (presence.ts).
+// store (shown to the peers at once, committed apart) → acknowledge after the commit; for presence, sanitise and relay (presence.ts).
 import type { Socket } from 'socket.io';
 import { EVENT_MESSAGE } from '../../../board/sync/protocol';
 import { Malformed, parseFrame, syncStep2Frame } from '../../../board/sync/frames';
@@ -10,7 +10,7 @@ import { SYNC_REQUEST_BURST, SYNC_REQUESTS_PER_SECOND, type BoardRoom, type Room
 import { receivePresence } from '../presence';
 import { checkRights, checkUpdate } from './check';
 import { storeUpdate } from './store';
-import { refused, stored, type Reply } from './acknowledge';
+import { refused, storageAway, stored, type Reply } from './acknowledge';
 
 /**
  * Runs `task` after the member's earlier updates were checked and handed to the writer, whatever
@@ -54,12 +54,21 @@ function handle(
 			const update = frame.update;
 			// Each update waits for the member's earlier ones to be checked and handed to the writer.
 			return inOrder(member, async () => {
-				if (!checked.ok) return reply(checked.ack);
-				const refusal = await checkRights(ctx, room, member, update, checked.decoded);
-				if (refusal) return reply(refused(refusal));
+				if (!checked.ok) {
+					if ('ack' in checked) return reply(checked.ack);
+					// Already in the room, which shows updates before they are committed: "stored"
+					// once everything the board took before this is (the writer's order per board).
+					void ctx.writer.stored(room.id).then(
+						() => reply(stored()),
+						() => reply(storageAway())
+					);
+					return;
+				}
+				const verdict = await checkRights(ctx, room, member, update, checked.decoded);
+				if (typeof verdict === 'string') return reply(refused(verdict));
 				// Handed to the writer now, in order (it commits in that order); the commit is
 				// awaited apart from the queue, so one member's updates still share group commits.
-				void storeUpdate(ctx, room, member, update, reply).catch(failed);
+				void storeUpdate(ctx, room, member, update, reply, verdict.shadowGen).catch(failed);
 			});
 		}
 		case 'awareness': {

@@ -2,6 +2,7 @@
 // its log into the snapshot and drop the document. Compaction also runs every
 // `compactEvery` stored updates while the board is open.
 import type { CollabContext } from '../context';
+import { closeSocket } from '../context';
 import type { BoardRoom } from '../room';
 import { compact } from '../persistence';
 
@@ -57,4 +58,23 @@ export function noteStored(ctx: CollabContext, room: BoardRoom) {
 	room.compacting = runCompaction(ctx, room).finally(() => {
 		room.compacting = null;
 	});
+}
+
+/**
+ * The room holds a change that storage refused after it was shown (the member's access ended
+ * between the check and the commit): drop the room and close its sockets. They reconnect to a
+ * copy read from storage; a peer's copy of the refused change is then refused as written under
+ * another member's id, and its provider continues on the server's state.
+ */
+export function resetRoom(ctx: CollabContext, room: BoardRoom, reason: string) {
+	if (room.state !== 'ready') return;
+	room.state = 'gone';
+	room.unloaded = Promise.resolve();
+	if (room.unloadTimer) clearTimeout(room.unloadTimer);
+	if (ctx.rooms.get(room.id) === room) ctx.rooms.delete(room.id);
+	const sockets = [...room.members.values()].map((m) => m.socket);
+	room.members.clear();
+	for (const s of sockets) closeSocket(ctx, s, reason);
+	room.destroy();
+	ctx.log.warn(`[collab] board ${room.id} reloaded from storage: ${reason}`);
 }
