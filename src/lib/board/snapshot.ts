@@ -100,11 +100,12 @@ export class LiveSnapshot {
 
 	#compose(points: boolean, routes: boolean, zones: boolean, meta: boolean): BoardSnapshot {
 		const prev = this.#snapshot as BoardSnapshot | undefined;
+		const pointMap = maps(this.#doc).points;
 		const pts = points || !prev ? this.#points.list() : prev.points;
 		return {
 			points: pts,
 			// A route whose point is gone is not on the board (as readBoard has it).
-			routes: routes || !prev ? this.#routes.list().filter((x) => this.#points.items.has(x.pointId)) : prev.routes,
+			routes: routes || !prev ? this.#routes.list().filter((x) => pointMap.has(x.pointId)) : prev.routes,
 			zones: zones || !prev ? this.#zones.list() : prev.zones,
 			scale: meta || !prev ? readScale(this.#doc) : prev.scale
 		};
