@@ -132,7 +132,10 @@ function boardDocument(): Uint8Array {
 			const n = 2 + Math.floor(rnd() * 4);
 			for (let k = 0; k < n; k++) {
 				const [px, py] = vertices[vertices.length - 1];
-				vertices.push([Math.min(PHOTO_W - 5, Math.max(5, px + (rnd() - 0.5) * 500)), Math.min(PHOTO_H - 5, Math.max(5, py + (rnd() - 0.5) * 400))]);
+				vertices.push([
+					Math.min(PHOTO_W - 5, Math.max(5, px + (rnd() - 0.5) * 500)),
+					Math.min(PHOTO_H - 5, Math.max(5, py + (rnd() - 0.5) * 400))
+				]);
 			}
 			addRoute(doc, { pointId: ids[i], vertices, crossSectionMm2: pick([0.5, 0.75, 1, 1.5]), exitLabel: `JB-${1 + (i % 6)}` });
 		}
@@ -153,7 +156,11 @@ async function expectStatus(res: Response, status: number, what: string) {
 /** Organisation, engineer, register entries, photo, survey and board, through the app's API and pages. */
 async function setUp(bench: Awaited<ReturnType<typeof openBenchDatabase>>, app: RunningApp) {
 	const db = bench.handle.db;
-	const org = await db.insertInto('organisation').values({ name: 'Harrowgate Water Services (bench)' }).returning('id').executeTakeFirstOrThrow();
+	const org = await db
+		.insertInto('organisation')
+		.values({ name: 'Harrowgate Water Services (bench)' })
+		.returning('id')
+		.executeTakeFirstOrThrow();
 	const hash = await hashPassword(PASSWORD);
 	const people = [
 		{ id: 'u-bench-admin', email: 'admin@bench.example', name: 'Bench Admin', role: 'admin' as const },
@@ -203,11 +210,19 @@ async function setUp(bench: Awaited<ReturnType<typeof openBenchDatabase>>, app: 
 	});
 	await expectStatus(plan, 303, 'plan the survey');
 	const surveyPath = plan.headers.get('location')!;
-	const start = await expectStatus(await engineer.form(`${surveyPath}?/board`, { machineId: machine.id, mediaId: media.id }), 303, 'start the board');
+	const start = await expectStatus(
+		await engineer.form(`${surveyPath}?/board`, { machineId: machine.id, mediaId: media.id }),
+		303,
+		'start the board'
+	);
 	const boardPath = start.headers.get('location')!;
 	const boardId = boardPath.split('/').pop()!;
 	// The content goes in as the board's stored snapshot, as compaction leaves a busy board.
-	await db.updateTable('board').set({ snapshot: Buffer.from(boardDocument()) }).where('id', '=', boardId).execute();
+	await db
+		.updateTable('board')
+		.set({ snapshot: Buffer.from(boardDocument()) })
+		.where('id', '=', boardId)
+		.execute();
 	return { boardUrl: app.url + boardPath };
 }
 
@@ -319,7 +334,11 @@ function summarise(frames: number[], long: number[]) {
 }
 
 /** Top self-time functions of a CPU profile. */
-function topFunctions(profile: { nodes: Array<{ id: number; callFrame: { functionName: string; url: string; lineNumber: number } }>; samples: number[]; timeDeltas: number[] }) {
+function topFunctions(profile: {
+	nodes: Array<{ id: number; callFrame: { functionName: string; url: string; lineNumber: number } }>;
+	samples: number[];
+	timeDeltas: number[];
+}) {
 	const self = new Map<number, number>();
 	profile.samples.forEach((id, i) => self.set(id, (self.get(id) ?? 0) + (profile.timeDeltas[i] ?? 0)));
 	const byName = new Map<string, number>();
@@ -338,7 +357,9 @@ async function main() {
 	console.log(
 		`machine: ${cpus().length} CPUs (${cpus()[0]?.model ?? '?'}), ${(totalmem() / 2 ** 30).toFixed(1)} GiB memory (${(freemem() / 2 ** 30).toFixed(1)} GiB free), load average ${load0.map((x) => x.toFixed(2)).join(' ')}`
 	);
-	console.log(`board benchmark: ${POINTS} points, ${ROUTES} routes, ${ZONES} keep-out zones on a ${PHOTO_W} × ${PHOTO_H} photo; viewport ${WIDTH} × ${HEIGHT}; Chromium headless, no GPU`);
+	console.log(
+		`board benchmark: ${POINTS} points, ${ROUTES} routes, ${ZONES} keep-out zones on a ${PHOTO_W} × ${PHOTO_H} photo; viewport ${WIDTH} × ${HEIGHT}; Chromium headless, no GPU`
+	);
 	const bench = await openBenchDatabase({ dir: '.data/pg-bench-board', defaultPort: 54379, name: 'spotface_bench_board' });
 	let app: RunningApp | null = null;
 	const browser = await chromium.launch({ executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium', args: BROWSER_ARGS });

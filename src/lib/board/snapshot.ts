@@ -3,7 +3,17 @@
 // code downstream (findings, drawing) can tell what changed by identity. The result always
 // equals `readBoard(doc)`.
 import * as Y from 'yjs';
-import { maps, readPoint, readRoute, readScale, readZone, type BoardPoint, type BoardRoute, type BoardSnapshot, type BoardZone } from './model';
+import {
+	maps,
+	readPoint,
+	readRoute,
+	readScale,
+	readZone,
+	type BoardPoint,
+	type BoardRoute,
+	type BoardSnapshot,
+	type BoardZone
+} from './model';
 import { MAP_META, MAP_POINTS, MAP_ROUTES, MAP_ZONES } from './model/schema';
 
 type Item = { id: string; createdAt: number };

@@ -1,6 +1,6 @@
-// The live snapshot reads only the items a change touched; whatever the changes, local or
-// from another replica, it must equal a full read of the document, and keep the objects of
-// items nobody touched.
+// The live snapshot reads only the items a change touched, and the evaluator checks only the
+// points whose inputs changed; whatever the changes, local or from another replica, they must
+// equal a full read and a full evaluation, and keep the objects of items nobody touched.
 import { describe, expect, test } from 'vitest';
 import fc from 'fast-check';
 import * as Y from 'yjs';
@@ -20,6 +20,8 @@ import {
 	updateRoute
 } from '../../../src/lib/board/model';
 import { LiveSnapshot } from '../../../src/lib/board/snapshot';
+import { BoardEvaluator } from '../../../src/lib/board/evaluation';
+import { evaluateBoard } from '../../../src/lib/trade';
 
 type Op = { kind: number; pick: number; x: number; y: number; text: string };
 
@@ -89,7 +91,10 @@ function run(doc: Y.Doc, op: Op) {
 			else clearScale(doc);
 			break;
 		case 9:
-			deleteItems(doc, [pick(points), pick(routes), pick(zones)].filter((x): x is string => !!x));
+			deleteItems(
+				doc,
+				[pick(points), pick(routes), pick(zones)].filter((x): x is string => !!x)
+			);
 			break;
 		case 10:
 			// Something the model does not accept: the item is left out of both reads alike.
@@ -126,9 +131,9 @@ describe('live snapshot', () => {
 				}
 				live.destroy();
 			}),
-			{ numRuns: 150 }
+			{ numRuns: 100 }
 		);
-	});
+	}, 60_000);
 
 	test('a change to one point gives a new object for that point only', () => {
 		const doc = new Y.Doc();
@@ -155,5 +160,42 @@ describe('live snapshot', () => {
 		// After destroy it no longer follows the document.
 		updatePoint(doc, ids[0], { notes: 'x' });
 		expect(live.board).toBe(after);
+	});
+});
+
+describe('board evaluator', () => {
+	const machine = { speedRpm: 1480, speedMode: 'constant' as const, hasSpeedSignal: false, hazardousArea: false };
+
+	test('gives what a full evaluation gives after any sequence of changes', () => {
+		fc.assert(
+			fc.property(fc.array(opArb, { maxLength: 40 }), (ops) => {
+				const doc = new Y.Doc();
+				const live = new LiveSnapshot(doc, () => {});
+				const evaluator = new BoardEvaluator({ machine, thresholds: null });
+				for (const op of ops) {
+					try {
+						run(doc, op);
+					} catch (e) {
+						if (!(e instanceof RangeError)) throw e;
+					}
+					expect(evaluator.evaluate(live.board)).toEqual(evaluateBoard(readBoard(doc), { machine, thresholds: null }));
+				}
+				live.destroy();
+			}),
+			{ numRuns: 100 }
+		);
+	}, 60_000);
+
+	test('a change to one point evaluates that point only', () => {
+		const doc = new Y.Doc();
+		const ids = Array.from({ length: 20 }, (_, i) => addPoint(doc, { x: i * 10, y: 5 }));
+		const live = new LiveSnapshot(doc, () => {});
+		const evaluator = new BoardEvaluator({ machine });
+		const before = evaluator.evaluate(live.board);
+		updatePoint(doc, ids[3], { surface: 'sheet_cover' });
+		const after = evaluator.evaluate(live.board);
+		expect(after.points.get(ids[3])!.worst).toBe('fail');
+		for (const id of ids) if (id !== ids[3]) expect(after.points.get(id)).toBe(before.points.get(id));
+		live.destroy();
 	});
 });
