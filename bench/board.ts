@@ -11,10 +11,11 @@
 // app (run `npx vite build` first when the code changed; it builds when build/ is missing).
 //
 //   npx tsx bench/board.ts [--points 1000] [--routes 50] [--zones 8] [--width 1280] [--height 800]
-//                          [--rounds 2] [--profile out.cpuprofile] [--trace out.json]
+//                          [--rounds 2] [--profile out.cpuprofile] [--profile-open out.cpuprofile] [--trace out.json]
 //
 // --profile writes a CPU profile of one pan-and-zoom round (open it in Chromium's DevTools) and
-// prints the functions with the most self time; --trace writes a Chromium performance trace of it.
+// prints the functions with the most self time; --trace writes a Chromium performance trace of it;
+// --profile-open profiles opening the board a second time.
 import { writeFileSync } from 'node:fs';
 import { cpus, freemem, loadavg, totalmem } from 'node:os';
 import { parseArgs } from 'node:util';
@@ -37,6 +38,7 @@ const { values: args } = parseArgs({
 		height: { type: 'string', default: '800' },
 		rounds: { type: 'string', default: '2' },
 		profile: { type: 'string' },
+		'profile-open': { type: 'string' },
 		trace: { type: 'string' }
 	}
 });
@@ -236,7 +238,7 @@ async function signIn(page: Page, base: string) {
 }
 
 /** Navigation start to the renderer's first frame with points on it, ms. */
-async function openBoard(page: Page, url: string): Promise<{ firstPointMs: number; points: number }> {
+async function openBoard(page: Page, url: string): Promise<{ firstPointMs: number; points: number; steps: string }> {
 	await page.goto(url);
 	const handle = await page.waitForFunction(
 		(mark) => {
@@ -251,7 +253,12 @@ async function openBoard(page: Page, url: string): Promise<{ firstPointMs: numbe
 		{ timeout: 60_000, polling: 'raf' }
 	);
 	const r = (await handle.jsonValue()) as { at: number; points: number };
-	return { firstPointMs: r.at, points: r.points };
+	const steps = (await page.evaluate(`(() => {
+		const n = performance.getEntriesByType('navigation')[0];
+		const marks = performance.getEntriesByType('mark').filter((m) => m.name.startsWith('spotface:')).map((m) => [m.name.slice(9), Math.round(m.startTime)]);
+		return [['html', Math.round(n.responseEnd)], ['dom', Math.round(n.domContentLoadedEventEnd)], ...marks];
+	})()`)) as Array<[string, number]>;
+	return { firstPointMs: r.at, points: r.points, steps: steps.map(([k, v]) => `${k} ${v}`).join(' · ') };
 }
 
 // In-page code goes in as text: tsx would wrap named functions in a helper the page lacks.
@@ -367,7 +374,7 @@ async function main() {
 		app = await startApp({ databaseUrl: bench.url });
 		const { boardUrl } = await setUp(bench, app);
 
-		const opens: Array<{ kind: string; ms: number; points: number }> = [];
+		const opens: Array<{ kind: string; ms: number; points: number; steps: string }> = [];
 		const rounds: Array<ReturnType<typeof summarise>> = [];
 		for (let r = 0; r < ROUNDS; r++) {
 			// A fresh profile each round: no cached files, no offline copy of the board.
@@ -377,9 +384,21 @@ async function main() {
 			page.on('pageerror', (e) => errors.push(e.message));
 			await signIn(page, app.url);
 			const cold = await openBoard(page, boardUrl);
-			opens.push({ kind: 'cold', ms: cold.firstPointMs, points: cold.points });
+			opens.push({ kind: 'cold', ms: cold.firstPointMs, points: cold.points, steps: cold.steps });
+			const openCdp = args['profile-open'] && r === 0 ? await context.newCDPSession(page) : null;
+			if (openCdp) {
+				await openCdp.send('Profiler.enable');
+				await openCdp.send('Profiler.setSamplingInterval', { interval: 200 });
+				await openCdp.send('Profiler.start');
+			}
 			const warm = await openBoard(page, boardUrl);
-			opens.push({ kind: 'warm', ms: warm.firstPointMs, points: warm.points });
+			if (openCdp) {
+				const { profile } = (await openCdp.send('Profiler.stop')) as { profile: Parameters<typeof topFunctions>[0] };
+				writeFileSync(args['profile-open']!, JSON.stringify(profile));
+				console.log(`CPU profile of opening the board (warm) written to ${args['profile-open']}; most self time:`);
+				for (const [name, t] of topFunctions(profile)) console.log(`  ${(t / 1000).toFixed(1).padStart(8)} ms  ${name}`);
+			}
+			opens.push({ kind: 'warm', ms: warm.firstPointMs, points: warm.points, steps: warm.steps });
 			await page.waitForTimeout(1500); // let the board settle (sync, offline copy)
 
 			const profiling = r === ROUNDS - 1 && (args.profile || args.trace);
@@ -406,7 +425,8 @@ async function main() {
 		}
 
 		console.log('\nnavigation to first point drawn:');
-		for (const o of opens) console.log(`  ${o.kind.padEnd(5)} ${ms(o.ms)} (${o.points} points in the first frame)`);
+		for (const o of opens)
+			console.log(`  ${o.kind.padEnd(5)} ${ms(o.ms)} (${o.points} points in the first frame; ms from navigation: ${o.steps})`);
 		console.log('\npan and zoom (requestAnimationFrame gaps):');
 		rounds.forEach((s, i) =>
 			console.log(
