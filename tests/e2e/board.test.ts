@@ -125,6 +125,9 @@ describe('the live board in two browsers', () => {
 	});
 
 	it('the technician’s cursor is shown to the engineer', async () => {
+		// On the upright tablet the open details sheet covers the lower half of the photo: fold it.
+		const fold = tech.page.getByRole('button', { name: 'Collapse the details' });
+		if (await fold.count()) await fold.click();
 		const box = (await tech.page.getByTestId('board-canvas').boundingBox())!;
 		await tech.page.mouse.move(box.x + box.width * 0.3, box.y + box.height * 0.3);
 		await tech.page.mouse.move(box.x + box.width * 0.6, box.y + box.height * 0.55, { steps: 5 });
