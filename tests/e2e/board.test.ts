@@ -50,6 +50,21 @@ async function clickCanvas(b: Browser, fx: number, fy: number) {
 	await b.page.mouse.click(box.x + box.width * fx, box.y + box.height * fy);
 }
 
+/** The markers the canvas draws (the points shape lists them: outline shape and label). */
+function drawnMarks(b: Browser) {
+	return b.page.evaluate(() => {
+		const K = (
+			window as unknown as {
+				Konva: { stages: Array<{ findOne(s: string): { getAttr(k: string): Array<{ shape: string; text: string }> } }> };
+			}
+		).Konva;
+		return K.stages[0]
+			.findOne('.points')
+			.getAttr('marks')
+			.map((m) => ({ shape: m.shape, text: m.text }));
+	});
+}
+
 async function waitLive(b: Browser) {
 	await expect.poll(() => b.page.getByTestId('connection').getAttribute('data-status'), { timeout: 15_000 }).toBe('connected');
 	await expect.poll(() => b.page.getByTestId('connection').textContent(), { timeout: 15_000 }).toContain('all changes saved');
@@ -92,11 +107,7 @@ describe('the live board in two browsers', () => {
 		expect(await row.textContent()).toContain('Choose the surface');
 
 		// The marker on the engineer's canvas is the triangle of a "check".
-		const shapes = await engineer.page.evaluate(() => {
-			const K = (window as unknown as { Konva: { stages: Array<{ find(s: string): Array<{ getAttr(k: string): unknown }> }> } }).Konva;
-			return K.stages[0].find('RegularPolygon').map((n) => n.getAttr('sides'));
-		});
-		expect(shapes).toContain(3);
+		expect(await drawnMarks(engineer)).toEqual([{ shape: 'triangle', text: 'P1 · Check' }]);
 		await tech.page.waitForTimeout(300);
 		await waitLive(tech);
 	});
@@ -108,17 +119,15 @@ describe('the live board in two browsers', () => {
 		await tech.page.getByRole('tab', { name: /All points/ }).click();
 		await expect.poll(() => techRow.locator('[data-severity]').getAttribute('data-severity'), { timeout: 10_000 }).toBe('fail');
 		expect(await techRow.textContent()).toContain('sheet-metal cover');
-		// On the technician's canvas the marker is now a square (outline and fill), no triangle left.
-		const shapes = () =>
-			tech.page.evaluate(() => {
-				const K = (window as unknown as { Konva: { stages: Array<{ find(s: string): unknown[] }> } }).Konva;
-				return { squares: K.stages[0].find('Rect').length, triangles: K.stages[0].find('RegularPolygon').length };
-			});
-		await expect.poll(shapes).toEqual({ squares: 2, triangles: 0 });
+		// On the technician's canvas the marker is now a square, no triangle left.
+		await expect.poll(() => drawnMarks(tech)).toEqual([{ shape: 'square', text: 'P1 · Fail' }]);
 		await waitLive(engineer);
 	});
 
 	it('the technician’s cursor is shown to the engineer', async () => {
+		// On the upright tablet the open details sheet covers the lower half of the photo: fold it.
+		const fold = tech.page.getByRole('button', { name: 'Collapse the details' });
+		if (await fold.count()) await fold.click();
 		const box = (await tech.page.getByTestId('board-canvas').boundingBox())!;
 		await tech.page.mouse.move(box.x + box.width * 0.3, box.y + box.height * 0.3);
 		await tech.page.mouse.move(box.x + box.width * 0.6, box.y + box.height * 0.55, { steps: 5 });

@@ -1,9 +1,10 @@
-// Bridges one board's Y.Doc, its undo manager and its sync provider to Svelte: a fresh,
-// validated snapshot after every change, the connection state, and who else is here.
+// Bridges one board's Y.Doc, its undo manager and its sync provider to Svelte: a validated
+// snapshot after every change (only the items a change touched are read again), the connection state, and who else is here.
 import * as Y from 'yjs';
 import { Awareness } from 'y-protocols/awareness';
 import type { Vec2 } from '../trade';
-import { addPoint, addZone, createUndoManager, LOCAL_ORIGIN, maps, readBoard, setEditor, setScale, type BoardSnapshot } from './model';
+import { addPoint, addZone, createUndoManager, LOCAL_ORIGIN, maps, setEditor, setScale, type BoardSnapshot } from './model';
+import { LiveSnapshot } from './snapshot';
 import { pointPatchSchema, zonePatchSchema, type ScaleData } from '../schemas/board';
 import type { SetAsideEntry } from './sync/set-aside';
 import type { OverwriteNotice } from './sync/overwrites';
@@ -192,18 +193,18 @@ export class LiveBoard {
 		setEditor(doc, this.#user.name);
 		const undo = createUndoManager(doc);
 		this.#undo = undo;
-		const refresh = () => (this.#snapshot = readBoard(doc));
+		// Each transaction re-reads only the items it touched.
+		const live = new LiveSnapshot(doc, (s) => (this.#snapshot = s));
+		this.#snapshot = live.board;
 		const stacks = () => {
 			this.#canUndo = undo.canUndo();
 			this.#canRedo = undo.canRedo();
 		};
-		doc.on('update', refresh);
 		for (const ev of ['stack-item-added', 'stack-item-popped', 'stack-cleared'] as const) undo.on(ev, stacks);
 		this.#unbindDoc = () => {
-			doc.off('update', refresh);
+			live.destroy();
 			for (const ev of ['stack-item-added', 'stack-item-popped', 'stack-cleared'] as const) undo.off(ev, stacks);
 		};
-		refresh();
 		stacks();
 	}
 

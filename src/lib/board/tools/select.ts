@@ -16,6 +16,10 @@ export class SelectTool extends BaseTool {
 	hint(): string {
 		if (this.#drag?.mode === 'move') return 'Let go where the point should be.';
 		if (this.#drag?.mode === 'vertex') return 'Let go where the corner should be.';
+		if (!this.host.canEdit())
+			return this.host.selection().length
+				? 'Read-only for you: tap empty space to clear the selection. Drag to pan.'
+				: 'Tap a point, route or zone to see it. Drag to pan.';
 		return this.host.selection().length
 			? 'Drag to move. Delete removes the selection. Tap empty space to clear it.'
 			: 'Tap a point, route or zone to see and edit it. Drag empty space to pan.';
