@@ -31,7 +31,8 @@ const EXPECTED: Record<string, string> = {
 	'comment.write': 'AETV',
 	'job.issue': 'AE',
 	'job.record': 'AET',
-	'audit.read': 'AE'
+	'audit.read': 'AE',
+	'integration.manage': 'A'
 };
 const LETTER = { admin: 'A', engineer: 'E', technician: 'T', viewer: 'V' } as const;
 

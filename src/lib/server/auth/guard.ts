@@ -40,7 +40,8 @@ export const PERMISSIONS = {
 	'comment.write': ['admin', 'engineer', 'technician', 'viewer'],
 	'job.issue': ['admin', 'engineer'],
 	'job.record': ['admin', 'engineer', 'technician'],
-	'audit.read': ['admin', 'engineer']
+	'audit.read': ['admin', 'engineer'],
+	'integration.manage': ['admin']
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Action = keyof typeof PERMISSIONS;
@@ -49,6 +50,11 @@ export const ACTIONS = Object.keys(PERMISSIONS) as Action[];
 export function can(role: Role | null | undefined, action: Action): boolean {
 	if (!role) return false;
 	return (PERMISSIONS[action] as readonly Role[]).includes(role);
+}
+
+/** Actions that only read; a read-only API token is limited to these. */
+export function isReadAction(action: Action): boolean {
+	return action.endsWith('.read');
 }
 
 export function isRole(value: unknown): value is Role {

@@ -227,6 +227,7 @@ export interface MediaTable {
 export type { SurveyStatus } from '../../survey/states';
 import type { SurveyStatus } from '../../survey/states';
 import type { ReviewTables } from './review-types';
+import type { IntegrationTables } from './integration-types';
 export type SurveyAssigneeRole = 'engineer' | 'technician';
 /** bigint columns come back as strings (pg does not narrow them to number); optional on insert. */
 type Bigint = ColumnType<string, string | number | bigint | undefined, string | number | bigint>;
@@ -293,7 +294,7 @@ export interface BoardClientTable {
 	claimed_at: Generated<Date>;
 }
 
-export interface Database extends ReviewTables {
+export interface Database extends ReviewTables, IntegrationTables {
 	organisation: OrganisationTable;
 	app_user: AppUserTable;
 	member: MemberTable;
