@@ -23,7 +23,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('revoked_at', 'timestamptz')
 		.addColumn('revoked_by', 'text', (c) => c.references('app_user.id').onDelete('set null'))
 		.addColumn('last_used_at', 'timestamptz')
-		.addCheckConstraint('api_token_role_check', sql`(kind = 'person' and role is null) or (kind = 'service' and role is not null)`)
+		.addCheckConstraint('api_token_kind_role_check', sql`(kind = 'person' and role is null) or (kind = 'service' and role is not null)`)
 		.execute();
 	await db.schema.createIndex('api_token_org_idx').on('api_token').columns(['organisation_id', 'created_at']).execute();
 
