@@ -2,7 +2,8 @@ import nodemailer, { type Transporter } from 'nodemailer';
 import { sql } from 'kysely';
 import type { DB } from '../db';
 import type { MailAudience, MailPurpose } from '../db/types';
-import { enqueue, MAIL_QUEUE, wake, type JobHandler } from '../queue/boss';
+import { createHash } from 'node:crypto';
+import { enqueue, MAIL_QUEUE_PREFIX, wake, type JobHandler } from '../queue/boss';
 
 export interface OutgoingMail {
 	to: string;
@@ -29,11 +30,25 @@ export interface Mailer {
 	queue(db: DB, m: OutgoingMail): Promise<void>;
 	/** Wakes the mail worker now; `queue` does this itself except inside a transaction (call it after the commit). */
 	kick(): void;
+	/** The queue this process's messages go to (one per mail server). */
+	queueName: string;
 	/** The queue job that delivers one message (run by the mail worker, retried with back-off when it throws). */
 	deliver: JobHandler;
 	/** Queues a job for every message still waiting (rows written while no queue ran, or whose job was lost). */
 	sweep(): Promise<number>;
 	close(): void;
+}
+
+/**
+ * One queue per mail server: a process only delivers messages queued for the server it is
+ * configured with, so a process with a broken SMTP_URL (or one being changed over) never holds
+ * up the others' mail. A message queued under an old server is picked up by the sweep.
+ */
+export function mailQueueName(smtpUrl: string | undefined): string {
+	return `${MAIL_QUEUE_PREFIX}-${createHash('sha256')
+		.update(smtpUrl ?? '')
+		.digest('hex')
+		.slice(0, 12)}`;
 }
 
 // A message claimed by a process that died mid-delivery may be claimed again after this long.
@@ -48,6 +63,7 @@ export function createMailer(opts: { db: DB; smtpUrl?: string; from: string; max
 	const transport: Transporter | null = opts.smtpUrl
 		? nodemailer.createTransport({ url: opts.smtpUrl, connectionTimeout: 15_000, greetingTimeout: 15_000, socketTimeout: 60_000 })
 		: null;
+	const MAIL_QUEUE = mailQueueName(opts.smtpUrl);
 
 	const deliver: JobHandler = async (job) => {
 		if (!transport) throw new Error('SMTP_URL is not set');
@@ -98,6 +114,7 @@ export function createMailer(opts: { db: DB; smtpUrl?: string; from: string; max
 			await enqueue(db, MAIL_QUEUE, row.id);
 			if (!db.isTransaction) wake(MAIL_QUEUE);
 		},
+		queueName: MAIL_QUEUE,
 		kick() {
 			if (transport) setImmediate(() => wake(MAIL_QUEUE));
 		},

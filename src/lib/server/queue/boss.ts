@@ -8,7 +8,8 @@ import { CompiledQuery } from 'kysely';
 import type pg from 'pg';
 import type { DB } from '../db/index';
 
-export const MAIL_QUEUE = 'mail-send';
+/** E-mail jobs go to a queue per mail server (see `mailQueueName`); webhooks to one queue. */
+export const MAIL_QUEUE_PREFIX = 'mail-send';
 export const WEBHOOK_QUEUE = 'webhook-deliver';
 
 export interface RetryPolicy {
@@ -24,10 +25,16 @@ export interface QueueSettings {
 	webhook: RetryPolicy;
 }
 
+export interface QueueDefinition {
+	name: string;
+	policy: RetryPolicy;
+	handler: JobHandler;
+}
+
 export type JobHandler = (job: PgBoss.JobWithMetadata<{ id: string }>) => Promise<void>;
 
 let boss: PgBoss | null = null;
-let settings: QueueSettings | null = null;
+const policies = new Map<string, RetryPolicy>();
 const workers = new Map<string, string>();
 
 /** The running queue in this process, or null (scripts, tests calling repositories directly). */
@@ -50,8 +57,8 @@ function through(db: DB): PgBoss.Db {
  * exist or neither does. Without a running queue in this process the row waits for the sweep.
  */
 export async function enqueue(db: DB, queue: string, id: string): Promise<void> {
-	if (!boss || !settings) return;
-	const p = queue === MAIL_QUEUE ? settings.mail : settings.webhook;
+	const p = policies.get(queue);
+	if (!boss || !p) return;
 	await boss.send(queue, { id }, { db: through(db), retryLimit: p.retryLimit, retryDelay: p.retryDelay, retryBackoff: true });
 }
 
@@ -64,8 +71,8 @@ export function wake(queue: string) {
 /** Starts pg-boss on the pool, creates the queues and runs one worker per queue. */
 export async function startBoss(
 	pool: pg.Pool,
-	s: QueueSettings,
-	handlers: Record<string, JobHandler>,
+	pollSeconds: number,
+	queues: QueueDefinition[],
 	sweep: () => Promise<void>
 ): Promise<PgBoss> {
 	if (boss) return boss;
@@ -77,20 +84,27 @@ export async function startBoss(
 	});
 	b.on('error', (err) => console.error('[queue]', err instanceof Error ? err.message : err));
 	await b.start();
-	for (const [name, p] of [
-		[MAIL_QUEUE, s.mail],
-		[WEBHOOK_QUEUE, s.webhook]
-	] as const) {
-		await b.createQueue(name, { name, retryLimit: p.retryLimit, retryDelay: p.retryDelay, retryBackoff: true });
+	for (const q of queues) {
+		await b.createQueue(q.name, { name: q.name, retryLimit: q.policy.retryLimit, retryDelay: q.policy.retryDelay, retryBackoff: true });
+		policies.set(q.name, q.policy);
 	}
 	boss = b;
-	settings = s;
-	for (const [name, handler] of Object.entries(handlers)) {
+	for (const { name, handler } of queues) {
+		// Up to 20 jobs per fetch, run side by side; each one that throws is failed on its own
+		// (pg-boss retries it after its back-off), the rest are completed together.
 		const id = await b.work<{ id: string }>(
 			name,
-			{ pollingIntervalSeconds: s.pollSeconds, batchSize: 1, includeMetadata: true },
+			{ pollingIntervalSeconds: pollSeconds, batchSize: 20, includeMetadata: true },
 			async (jobs) => {
-				for (const job of jobs) await handler(job);
+				await Promise.all(
+					jobs.map(async (job) => {
+						try {
+							await handler(job);
+						} catch (e) {
+							await b.fail(name, job.id, { message: e instanceof Error ? e.message : String(e) });
+						}
+					})
+				);
 			}
 		);
 		workers.set(name, id);
@@ -103,5 +117,6 @@ export async function stopBoss() {
 	const b = boss;
 	boss = null;
 	workers.clear();
+	policies.clear();
 	if (b) await b.stop({ graceful: true, wait: true, timeout: 5000 });
 }

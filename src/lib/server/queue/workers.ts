@@ -3,7 +3,7 @@
 // is not reachable yet, it tries again every few seconds; nothing is lost meanwhile (the rows wait).
 import { context } from '../context';
 import { webhookDeliverer, sweepDeliveries } from '../integration/webhooks';
-import { MAIL_QUEUE, startBoss, WEBHOOK_QUEUE } from './boss';
+import { startBoss, WEBHOOK_QUEUE } from './boss';
 
 let started = false;
 
@@ -15,8 +15,11 @@ export function startQueue() {
 		try {
 			await startBoss(
 				handle.pool,
-				config.queue,
-				{ [MAIL_QUEUE]: mailer.deliver, [WEBHOOK_QUEUE]: webhookDeliverer(handle.db, config.webhookPolicy) },
+				config.queue.pollSeconds,
+				[
+					{ name: mailer.queueName, policy: config.queue.mail, handler: mailer.deliver },
+					{ name: WEBHOOK_QUEUE, policy: config.queue.webhook, handler: webhookDeliverer(handle.db, config.webhookPolicy) }
+				],
 				async () => {
 					await mailer.sweep();
 					await sweepDeliveries(handle.db);
