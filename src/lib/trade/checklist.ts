@@ -79,7 +79,7 @@ export function installationChecklist(
 		add({
 			id: 'drill-tap',
 			phase: 'seat',
-			text: `Drill the 5.0 mm tap drill hole ${fmt(hole.holeMm)} mm deep, square to the seat, and tap M6 to at least ${fmt(hole.threadMm)} mm of full thread.`,
+			text: `Drill the ${hole.tapDrillMm.toFixed(1)} mm tap drill hole ${fmt(hole.holeMm)} mm deep, square to the seat, and tap ${hole.thread} to at least ${fmt(hole.threadMm)} mm of full thread.`,
 			rule: 'hole.wall-thickness'
 		});
 		add({ id: 'clean-hole', phase: 'seat', text: 'Clean out swarf and cutting fluid; degrease the seat.' });

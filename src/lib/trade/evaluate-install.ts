@@ -1,6 +1,6 @@
 import { worstSeverity, type Finding, type Severity } from './findings';
 import { fmt, InputReader, isGood } from './inputs';
-import { finding, MOUNTINGS, thresholdsForEvaluation, type Mounting } from './evaluate-point';
+import { finding, MOUNTING_LABEL, MOUNTINGS, thresholdsForEvaluation, type Mounting } from './evaluate-point';
 import type { Thresholds } from './thresholds';
 
 /** What the technician records per point when the sensor is fitted. */
@@ -12,6 +12,87 @@ export interface InstalledRecordInput {
 	supplyV?: number | null;
 	/** Polarity checked with a meter and found correct. */
 	polarityOk?: boolean | null;
+	/**
+	 * The fields below are checked only when the caller passes them (a job's record does; a
+	 * quick check of torque and supply does not). null means "not recorded yet".
+	 */
+	/** The mounting method the approved plan asked for. */
+	plannedMounting?: Mounting | null;
+	/** When the device reported ready, and when the baseline period started (ISO 8601 or Date). */
+	readyAt?: string | Date | null;
+	baselineStartAt?: string | Date | null;
+	/** What was done differently from the plan, and why. */
+	deviation?: string | null;
+	deviationReason?: string | null;
+	/** Whether a photo of the installed sensor was taken. */
+	photo?: boolean | null;
+}
+
+function timeOf(v: string | Date | null | undefined): number | null | undefined {
+	if (v === undefined) return undefined;
+	if (v === null || v === '') return null;
+	const ms = v instanceof Date ? v.getTime() : Date.parse(v);
+	return Number.isFinite(ms) ? ms : Number.NaN;
+}
+
+const blank = (v: unknown) => typeof v !== 'string' || v.trim() === '';
+
+/** Findings on the plan and the commissioning times (see InstalledRecordInput). */
+function planFindings(o: Record<string, unknown>, mounting: Mounting | undefined): Finding[] {
+	const out: Finding[] = [];
+	const planned = o.plannedMounting as Mounting | null | undefined;
+	const deviation = o.deviation as string | null | undefined;
+	const reason = o.deviationReason as string | null | undefined;
+	const methodDiffers = planned != null && mounting !== undefined && mounting !== planned;
+	if (planned !== undefined || deviation !== undefined) {
+		if ((methodDiffers || !blank(deviation)) && blank(reason)) {
+			out.push(
+				finding(
+					'install.deviation',
+					'fail',
+					methodDiffers
+						? `Mounted with ${MOUNTING_LABEL[mounting!].toLowerCase()} where the plan says ${MOUNTING_LABEL[planned!].toLowerCase()}: say why.`
+						: 'A deviation from the plan needs its reason.'
+				)
+			);
+		} else if (methodDiffers || !blank(deviation)) {
+			out.push(
+				finding(
+					'install.deviation',
+					'warn',
+					`Deviation from the plan: ${(deviation ?? '').trim() || 'method changed'} (${(reason ?? '').trim()}).`
+				)
+			);
+		}
+	}
+	const ready = timeOf(o.readyAt as string | Date | null | undefined);
+	const baseline = timeOf(o.baselineStartAt as string | Date | null | undefined);
+	if (ready !== undefined) {
+		if (ready === null) out.push(finding('install.ready', 'warn', 'Power on and record the time the device reported ready.'));
+		else if (Number.isNaN(ready)) out.push(finding('install.ready', 'fail', 'The ready time is not a valid date and time.'));
+		else out.push(finding('install.ready', 'pass', 'Device reported ready.'));
+	}
+	if (baseline !== undefined) {
+		if (baseline === null) out.push(finding('install.baseline', 'warn', 'Start the baseline period and record when it started.'));
+		else if (Number.isNaN(baseline)) out.push(finding('install.baseline', 'fail', 'The baseline start is not a valid date and time.'));
+		else if (typeof ready === 'number' && !Number.isNaN(ready) && baseline < ready) {
+			out.push(
+				finding(
+					'install.baseline',
+					'fail',
+					'The baseline started before the device reported ready: start it again once the device is ready.'
+				)
+			);
+		} else out.push(finding('install.baseline', 'pass', 'Baseline period started.'));
+	}
+	if (o.photo !== undefined) {
+		out.push(
+			o.photo === true
+				? finding('install.photo', 'pass', 'Photo of the installed sensor taken.')
+				: finding('install.photo', 'warn', 'Take a photo of the installed sensor.')
+		);
+	}
+	return out;
 }
 
 /**
@@ -85,6 +166,7 @@ export function evaluateInstalled(
 				finding('install.polarity', 'fail', 'Polarity wrong. Switch the supply off and correct the wiring before connecting the sensor.')
 			);
 		}
+		out.push(...planFindings(o, isGood(mounting) ? mounting : undefined));
 	}
 	const findings = [...settingFindings, ...r.findings, ...out];
 	return { findings, worst: worstSeverity(findings) };

@@ -17,6 +17,19 @@ export type SpeedMode = (typeof SPEED_MODES)[number];
 /** Nominal diameter of the M6 mounting stud, mm (ISO 261). */
 export const STUD_DIAMETER_MM = 6;
 
+/**
+ * The M6 coarse thread the mounting stud screws into: pitch 1.0 mm (ISO 261/262), minor
+ * diameter 4.917 mm (ISO 724), tap drill 5.0 mm (common tables after ISO 2306: nominal
+ * diameter minus pitch).
+ */
+export const STUD_THREAD = Object.freeze({
+	designation: 'M6',
+	nominalDiameterMm: STUD_DIAMETER_MM,
+	pitchMm: 1.0,
+	minorDiameterMm: 4.917,
+	tapDrillMm: 5.0
+});
+
 export const SURFACE_LABEL: Readonly<Record<Surface, string>> = {
 	machined_housing: 'machined bearing housing',
 	cast_housing: 'cast bearing housing',
@@ -214,11 +227,42 @@ function engagementFactor(material: Material, t: Thresholds): number {
 	return t.threadEngagementAluminium;
 }
 
-/** Thread and hole depth for an M6 stud in a material; the hole runs deeper than the thread by the default margin. */
-export function studHoleRequirement(material: Material | undefined, t: Thresholds = DEFAULT_THRESHOLDS) {
+export interface StudHoleRequirement {
+	/** Thread designation, e.g. "M6". */
+	thread: string;
+	/** Tap drill diameter, mm. */
+	tapDrillMm: number;
+	/** Engagement the housing material needs (factor × d), mm; null while the material is unknown. */
+	engagementMm: number | null;
+	/** Engagement factor (× d) for the material; null while it is unknown. */
+	engagementFactor: number | null;
+	/** Full-thread depth to tap: the engagement, never less than the minimum thread depth, mm. */
+	threadMm: number;
+	/** Drilled hole depth: the thread plus the run-out margin (hole minus thread of the defaults), mm. */
+	holeMm: number;
+	/** Wall thickness the hole needs, mm (equal to the hole depth: a blind hole must not break through). */
+	wallMm: number;
+}
+
+/**
+ * Tapped hole for the M6 stud in a housing material: thread, tap drill, engagement, thread
+ * and hole depth. The hole runs deeper than the thread by the default margin (hole depth
+ * minus thread depth of the thresholds) to leave room for the tap's lead and swarf.
+ */
+export function studHoleRequirement(material: Material | null | undefined, t: Thresholds = DEFAULT_THRESHOLDS): StudHoleRequirement {
 	const margin = t.minWallThicknessStudMm - t.minThreadDepthMm;
-	const threadMm = material ? Math.max(t.minThreadDepthMm, engagementFactor(material, t) * STUD_DIAMETER_MM) : t.minThreadDepthMm;
-	return { threadMm, holeMm: threadMm + margin, wallMm: threadMm + margin };
+	const factor = material ? engagementFactor(material, t) : null;
+	const engagementMm = factor === null ? null : factor * STUD_DIAMETER_MM;
+	const threadMm = engagementMm === null ? t.minThreadDepthMm : Math.max(t.minThreadDepthMm, engagementMm);
+	return {
+		thread: STUD_THREAD.designation,
+		tapDrillMm: STUD_THREAD.tapDrillMm,
+		engagementMm,
+		engagementFactor: factor,
+		threadMm,
+		holeMm: threadMm + margin,
+		wallMm: threadMm + margin
+	};
 }
 
 export function pointFindings(p: ReadPoint, t: Thresholds): Finding[] {

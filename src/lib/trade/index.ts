@@ -14,6 +14,8 @@ export {
 	evaluatePoint,
 	studHoleRequirement,
 	STUD_DIAMETER_MM,
+	STUD_THREAD,
+	type StudHoleRequirement,
 	SURFACES,
 	MOUNTINGS,
 	MATERIALS,
@@ -34,5 +36,6 @@ export * from './evaluate-machine';
 export * from './evaluate-board';
 export * from './evaluate-install';
 export * from './checklist';
+export * from './job-plan';
 export * from './finding-units';
 export * from './calculators';

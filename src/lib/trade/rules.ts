@@ -264,6 +264,48 @@ const RULE_LIST = [
 		thresholds: []
 	},
 	{
+		id: 'install.deviation',
+		title: 'Deviation from the approved plan',
+		explanation:
+			'Work that differs from the approved plan (another mounting method, another place) is recorded with what changed and why, so the engineer can accept it or have it put right.',
+		reference: 'Common practice (as-installed records)',
+		firmness: 'common practice',
+		kind: 'check',
+		scope: 'install',
+		thresholds: []
+	},
+	{
+		id: 'install.ready',
+		title: 'Device reported ready',
+		explanation: 'After powering on, wait until the device reports ready and record the time; only then is it measuring.',
+		reference: 'Common practice',
+		firmness: 'common practice',
+		kind: 'check',
+		scope: 'install',
+		thresholds: []
+	},
+	{
+		id: 'install.baseline',
+		title: 'Start of the baseline period',
+		explanation:
+			'The baseline (the readings later ones are compared with) starts once the device is ready and the machine runs normally; record when it started.',
+		reference: 'Common practice',
+		firmness: 'common practice',
+		kind: 'check',
+		scope: 'install',
+		thresholds: []
+	},
+	{
+		id: 'install.photo',
+		title: 'Photo of the installed sensor',
+		explanation: 'A photo of the sensor as fitted, with its cable outlet and the first fixings, shows later what was done.',
+		reference: 'Common practice',
+		firmness: 'common practice',
+		kind: 'check',
+		scope: 'install',
+		thresholds: []
+	},
+	{
 		id: 'input.invalid',
 		title: 'Values that cannot be right',
 		explanation:

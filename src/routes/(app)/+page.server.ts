@@ -3,6 +3,7 @@ import { can } from '$lib/server/auth/guard';
 import { context } from '$lib/server/context';
 import { mentionsOf } from '$lib/server/review/comments';
 import { awaitingSurveys } from '$lib/server/review/awaiting';
+import { dashboardOf } from '$lib/server/jobs/dashboard';
 import { plainBody } from '$lib/survey/mentions';
 import { SETTLED_STATUSES } from '$lib/survey/states';
 import type { PageServerLoad } from './$types';
@@ -10,7 +11,7 @@ import type { PageServerLoad } from './$types';
 export const load: PageServerLoad = async ({ locals, url }) => {
 	const viewer = requirePage(locals, 'organisation.read', url);
 	const db = context().handle.db;
-	const [memberCount, openInvitations, mySurveys, awaiting, mentions] = await Promise.all([
+	const [memberCount, openInvitations, mySurveys, awaiting, mentions, dashboard] = await Promise.all([
 		db
 			.selectFrom('member')
 			.select((eb) => eb.fn.countAll<string>().as('n'))
@@ -39,7 +40,8 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 			.limit(10)
 			.execute(),
 		awaitingSurveys(db, viewer.organisationId, viewer.userId, viewer.role),
-		mentionsOf(db, viewer.organisationId, viewer.userId, 10)
+		mentionsOf(db, viewer.organisationId, viewer.userId, 10),
+		dashboardOf(db, viewer.organisationId, { userId: viewer.userId, role: viewer.role })
 	]);
 	return {
 		welcome: url.searchParams.has('welcome'),
@@ -48,6 +50,7 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 		openInvitations: Number(openInvitations.n),
 		canInvite: can(viewer.role, 'member.invite'),
 		awaiting,
+		dashboard,
 		mentions: mentions.map((m) => ({
 			id: m.id,
 			surveyId: m.survey_id,

@@ -29,8 +29,10 @@ const EXPECTED: Record<string, string> = {
 	'board.write': 'AET',
 	'review.decide': 'AE',
 	'comment.write': 'AETV',
+	'job.read': 'AETV',
 	'job.issue': 'AE',
 	'job.record': 'AET',
+	'job.close': 'AE',
 	'audit.read': 'AE',
 	'integration.manage': 'A'
 };

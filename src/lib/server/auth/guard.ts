@@ -38,8 +38,10 @@ export const PERMISSIONS = {
 	'board.write': ['admin', 'engineer', 'technician'],
 	'review.decide': ['admin', 'engineer'],
 	'comment.write': ['admin', 'engineer', 'technician', 'viewer'],
+	'job.read': ['admin', 'engineer', 'technician', 'viewer'],
 	'job.issue': ['admin', 'engineer'],
 	'job.record': ['admin', 'engineer', 'technician'],
+	'job.close': ['admin', 'engineer'],
 	'audit.read': ['admin', 'engineer'],
 	'integration.manage': ['admin']
 } as const satisfies Record<string, readonly Role[]>;

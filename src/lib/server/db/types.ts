@@ -69,7 +69,7 @@ export interface AuditEventTable {
 
 /** 'recipient': only the mailbox owner may see it; 'organisation': the sending organisation's outbox lists it. */
 export type MailAudience = 'recipient' | 'organisation';
-export type MailPurpose = 'invitation' | 'password-reset' | 'reset-no-account' | 'sign-up' | 'sign-up-existing' | 'mention' | 'other';
+export type MailPurpose = 'invitation' | 'password-reset' | 'reset-no-account' | 'sign-up' | 'sign-up-existing' | 'mention' | 'job-assigned' | 'other';
 
 export interface MailOutboxTable {
 	id: Generated<string>;
@@ -228,6 +228,7 @@ export type { SurveyStatus } from '../../survey/states';
 import type { SurveyStatus } from '../../survey/states';
 import type { ReviewTables } from './review-types';
 import type { IntegrationTables } from './integration-types';
+import type { JobTables } from './job-types';
 export type SurveyAssigneeRole = 'engineer' | 'technician';
 /** bigint columns come back as strings (pg does not narrow them to number); optional on insert. */
 type Bigint = ColumnType<string, string | number | bigint | undefined, string | number | bigint>;
@@ -294,7 +295,7 @@ export interface BoardClientTable {
 	claimed_at: Generated<Date>;
 }
 
-export interface Database extends ReviewTables, IntegrationTables {
+export interface Database extends ReviewTables, JobTables, IntegrationTables {
 	organisation: OrganisationTable;
 	app_user: AppUserTable;
 	member: MemberTable;

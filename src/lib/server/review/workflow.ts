@@ -2,7 +2,9 @@
 // checked against the transition table (src/lib/survey/states.ts) and the guard, made under a
 // lock on the survey and its boards, kept as a survey_transition row (who, when, from, to, note),
 // and announced to the live board when the transaction commits.
+import type { Transaction } from 'kysely';
 import type { DB } from '../db/index';
+import type { Database } from '../db/types';
 import type { Role } from '../db/types';
 import { can } from '../auth/guard';
 import { announceBoardState } from '../boards/service';
@@ -46,9 +48,21 @@ export interface TransitionResult {
  * the exceptions confirmed), 400 when a required note is missing.
  */
 export async function transitionSurvey(db: DB, input: TransitionInput): Promise<TransitionResult> {
+	if (input.name === 'issue_jobs') {
+		// Issuing needs the jobs themselves (points, assignee, outage window): see jobs/issue.ts.
+		throw new WorkflowError(409, "Jobs are issued from the survey's “Issue jobs” page, with their points, assignees and dates.");
+	}
+	return db.transaction().execute((trx) => transitionSurveyIn(trx, input));
+}
+
+/**
+ * The move inside the caller's transaction (issuing jobs writes the jobs and the move together).
+ * Same checks and errors as transitionSurvey.
+ */
+export async function transitionSurveyIn(trx: Transaction<Database>, input: TransitionInput): Promise<TransitionResult> {
 	const note = (input.note ?? '').trim();
 	if (note.length > TRANSITION_NOTE_MAX) throw new WorkflowError(400, `A note has at most ${TRANSITION_NOTE_MAX} characters.`);
-	return db.transaction().execute(async (trx) => {
+	{
 		const s = await trx
 			.selectFrom('survey')
 			.select(['id', 'status', 'archived_at'])
@@ -137,7 +151,7 @@ export async function transitionSurvey(db: DB, input: TransitionInput): Promise<
 			boards.map((b) => b.id)
 		);
 		return { id: s.id, from: s.status, to: t.to, transitionId: row.id, revision };
-	});
+	}
 }
 
 /** The moves made on a survey, oldest first, with who made them. */

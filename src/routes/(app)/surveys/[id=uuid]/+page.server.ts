@@ -19,6 +19,7 @@ import { surveyTodo } from '$lib/survey/todo';
 import { transitionSurvey, listTransitions, WorkflowError } from '$lib/server/review/workflow';
 import { surveyOpenItems } from '$lib/server/review/open-items';
 import { listRevisions } from '$lib/server/review/revisions';
+import { dateText, jobReference, listJobs } from '$lib/server/jobs/repository';
 import { listThreads, mentionableMembers } from '$lib/server/review/comments';
 import { boardAccess, isSettled } from '$lib/survey/board-access';
 import type { Role, SurveyStatus } from '$lib/server/db/types';
@@ -47,6 +48,7 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		listThreads(db, viewer.organisationId, survey.id, { targetKind: 'survey' }),
 		mentionableMembers(db, viewer.organisationId)
 	]);
+	const jobs = await listJobs(db, viewer.organisationId, { surveyId: survey.id });
 	const media = await mediaForMachines(
 		db,
 		viewer.organisationId,
@@ -117,10 +119,23 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		canPlan: canPlan && open,
 		canBoard: mayChangeBoards(viewer.role, survey),
 		canUpload: can(viewer.role, 'media.upload') && mayChangeBoards(viewer.role, survey),
-		transitions: availableTransitions(viewer.role, survey.status, survey.archived_at !== null).map((t) => ({
-			name: t.name,
-			label: t.label,
-			note: t.note
+		transitions: availableTransitions(viewer.role, survey.status, survey.archived_at !== null)
+			.filter((t) => t.name !== 'issue_jobs')
+			.map((t) => ({
+				name: t.name,
+				label: t.label,
+				note: t.note
+			})),
+		canIssueJobs: availableTransitions(viewer.role, survey.status, survey.archived_at !== null).some((t) => t.name === 'issue_jobs'),
+		jobs: jobs.map((j) => ({
+			id: j.id,
+			reference: jobReference(j.number),
+			title: j.title,
+			status: j.status,
+			assignee: j.assignee_name,
+			due: dateText(j.due_date),
+			recorded: Number(j.recorded),
+			points: Number(j.points)
 		})),
 		exceptions,
 		history: history.map((h) => ({
