@@ -71,12 +71,16 @@ export const changesQuerySchema = z.object({
 
 export const findingSchema = z
 	.object({
-		rule: z.string(),
+		rule: z.string().describe('Stable rule id, e.g. seat.flat-diameter'),
 		severity: z.enum(['pass', 'warn', 'fail']),
-		message: z.string()
+		message: z.string(),
+		value: z.number().optional().describe("The measured or computed value, in the rule's unit"),
+		limit: z.number().optional().describe('The threshold it was compared with'),
+		reference: z.string().optional().describe('Where the rule comes from'),
+		field: z.string().optional(),
+		missing: z.boolean().optional()
 	})
-	.passthrough()
-	.describe('One rule finding as stored at approval.');
+	.describe('One rule finding.');
 
 export const revisionSummarySchema = z.object({
 	id: z.uuid(),
@@ -124,3 +128,89 @@ export const revisionDetailSchema = revisionSummarySchema.extend({
 	boards: z.array(z.object({ id: z.uuid(), boardId: z.uuid(), machineId: z.uuid(), title: z.string() })),
 	points: z.array(revisionPointSchema)
 });
+
+export const jobSummarySchema = z.object({
+	id: z.uuid(),
+	reference: z.string().describe('J-0001: the number a job is known by on site'),
+	title: z.string(),
+	status: z.enum(['issued', 'closed']),
+	surveyId: z.uuid(),
+	surveyTitle: z.string(),
+	site: z.string(),
+	revisionNumber: z.number().int(),
+	assigneeName: z.string().nullable(),
+	outageStart: z.string().nullable(),
+	outageEnd: z.string().nullable(),
+	due: z.string().nullable().describe('YYYY-MM-DD'),
+	lockoutRequired: z.boolean(),
+	issuedAt: z.string(),
+	closedAt: z.string().nullable(),
+	updatedAt: z.string().describe('When anything of the job last changed (a record, closing); the feed orders by it.'),
+	points: z.number().int(),
+	recorded: z.number().int(),
+	failing: z.number().int(),
+	href: z.string()
+});
+
+export const jobFeedSchema = z.object({
+	items: z.array(jobSummarySchema),
+	nextCursor: z.string().nullable().describe('Pass as `cursor` for the next page; null on the last page.')
+});
+
+const recordSchema = z.object({
+	mounting: z.string().nullable(),
+	torqueNm: z.number().nullable(),
+	supplyV: z.number().nullable(),
+	polarityOk: z.boolean().nullable(),
+	photoMediaId: z.string().nullable(),
+	readyAt: z.string().nullable(),
+	baselineStartAt: z.string().nullable(),
+	deviation: z.string(),
+	deviationReason: z.string(),
+	findings: z.array(findingSchema),
+	worst: z.enum(['pass', 'warn', 'fail']).nullable(),
+	recordedAt: z.string().nullable(),
+	recordedBy: z.string().nullable()
+});
+
+export const jobDetailSchema = jobSummarySchema.extend({
+	notes: z.string(),
+	closeNote: z.string(),
+	tools: z.array(z.string()),
+	materials: z.array(z.record(z.string(), z.unknown())),
+	lockout: z.record(z.string(), z.unknown()).describe('Whether the machine must be stopped and locked out, and why'),
+	jobPoints: z.array(
+		z.object({
+			id: z.uuid().describe('The job point id (POST its as-installed record to /api/v1/jobs/{id}/points/{pointId}/record)'),
+			number: z.number().int(),
+			label: z.string(),
+			component: z.string(),
+			machineId: z.uuid(),
+			machine: z.string(),
+			boardId: z.uuid(),
+			direction: z.string().nullable(),
+			surface: z.string().nullable(),
+			mounting: z.string().nullable(),
+			material: z.string().nullable(),
+			notes: z.string(),
+			planFindings: z.array(findingSchema).describe('Rule findings of the point as approved'),
+			preparation: z
+				.record(z.string(), z.unknown())
+				.describe('Seat preparation for the mounting method (spot face, thread, pad, cure time)'),
+			preparationSummary: z.string(),
+			torqueLimitNm: z.number().nullable(),
+			conductor: z.string().nullable(),
+			route: z
+				.object({
+					lengthM: z.number().nullable(),
+					crossSectionMm2: z.number().nullable(),
+					supply: z.string().nullable(),
+					supplyV: z.number().nullable()
+				})
+				.nullable(),
+			record: recordSchema.nullable().describe('The as-installed record with its findings; null until recorded')
+		})
+	)
+});
+
+export const jobPackQuerySchema = z.object({ paper: z.enum(['A4', 'Letter']).default('A4').describe('Paper size of the PDF') });

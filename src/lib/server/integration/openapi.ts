@@ -25,7 +25,15 @@ import {
 import { invitationCreateSchema, memberRoleSchema, organisationUpdateSchema } from '../../schemas/auth';
 import { commentCreateSchema, commentEditSchema, commentListQuerySchema, commentReplySchema } from '../../schemas/comment';
 import { compareQuerySchema, transitionSchema } from '../../schemas/review';
-import { changesQuerySchema, revisionDetailSchema, revisionFeedSchema } from '../../schemas/integration';
+import {
+	changesQuerySchema,
+	jobDetailSchema,
+	jobFeedSchema,
+	jobPackQuerySchema,
+	revisionDetailSchema,
+	revisionFeedSchema
+} from '../../schemas/integration';
+import { recordPointSchema } from '../../schemas/job';
 import { thresholdsSchema } from '../../trade';
 import { PERMISSIONS, type Action } from '../auth/guard';
 
@@ -54,6 +62,7 @@ export interface Operation {
 }
 
 const ID = '3f0c9a8e-5b7d-4c2a-9e1f-2a6b8c4d7e01';
+const POINT_ID = '7b2e4d1a-9c3f-4e8b-a5d6-0f1e2d3c4b5a';
 const JSON_OBJECT = z.record(z.string(), z.unknown()).describe('JSON object; see the route for its fields.');
 
 const problemSchema = z
@@ -106,6 +115,53 @@ export const OPERATIONS: Operation[] = [
 		tag: 'Integration',
 		action: 'survey.read',
 		response: revisionDetailSchema
+	},
+	{
+		method: 'get',
+		path: '/api/v1/jobs',
+		summary: 'Installation jobs changed since a time (issued, recorded on, closed; cursor paging, oldest change first)',
+		tag: 'Integration',
+		action: 'job.read',
+		query: changesQuerySchema,
+		response: jobFeedSchema,
+		exampleQuery: '?since=2026-01-01T00:00:00Z&limit=50'
+	},
+	{
+		method: 'get',
+		path: '/api/v1/jobs/{id}',
+		summary: 'One job with its points, seat preparation, findings and as-installed records',
+		tag: 'Integration',
+		action: 'job.read',
+		response: jobDetailSchema
+	},
+	{
+		method: 'get',
+		path: '/api/v1/jobs/{id}/pack',
+		summary: 'The job pack as a PDF',
+		tag: 'Integration',
+		action: 'job.read',
+		query: jobPackQuerySchema,
+		responseType: 'application/pdf',
+		exampleQuery: '?paper=A4'
+	},
+	{
+		method: 'post',
+		path: '/api/v1/jobs/{id}/points/{pointId}/record',
+		summary: 'The as-installed record of one job point (JSON, or multipart with a `photo`); answers its findings',
+		tag: 'Integration',
+		action: 'job.record',
+		body: recordPointSchema,
+		example: {
+			mounting: 'stud',
+			torqueNm: 8,
+			supplyV: 23.6,
+			polarity: 'ok',
+			readyAt: '2026-03-03T09:40:00Z',
+			baselineStartAt: '2026-03-03T10:00:00Z',
+			deviation: '',
+			deviationReason: '',
+			recordKey: 'maint-system-wo-4711-p1'
+		}
 	},
 	{
 		method: 'get',
@@ -375,7 +431,7 @@ export const OPERATIONS: Operation[] = [
 
 /** The curl line the reference page shows for an operation. */
 export function exampleRequest(op: Operation, origin = 'https://spotface.example'): string {
-	const url = origin + op.path.replace('{id}', ID).replace('{number}', '1') + (op.exampleQuery ?? '');
+	const url = origin + op.path.replace('{id}', ID).replace('{pointId}', POINT_ID).replace('{number}', '1') + (op.exampleQuery ?? '');
 	const parts = [`curl -X ${op.method.toUpperCase()} '${url}'`, `-H 'Authorization: Bearer $SPOTFACE_TOKEN'`];
 	if (op.method === 'post') parts.push(`-H 'Idempotency-Key: $(uuidgen)'`);
 	if (op.bodyType === 'multipart/form-data') parts.push(`-F 'file=@pump.jpg' -F 'kind=photo'`);
