@@ -16,6 +16,8 @@ import { DEMO_SURVEY } from '../../src/lib/server/db/seed-survey';
 import { diskStorage } from '../../src/lib/server/storage/index';
 import { startWebhookReceiver } from '../../src/lib/server/integration/test-receiver';
 import { verifyWebhook } from '../../src/lib/server/integration/webhook-signature';
+import { issueJobs } from '../../src/lib/server/jobs/service';
+import { approvedPointsOfLatestRevision } from '../../src/lib/server/jobs/repository';
 
 let t: TestDatabase;
 let app: RunningApp;
@@ -393,6 +395,91 @@ describe('approved revisions feed and webhooks', () => {
 		const ours = (await t.db.selectFrom('api_token').select('id').where('name', '=', 'Maintenance system').executeTakeFirstOrThrow()).id;
 		expect((await otherAdmin.form('/settings/integration?/revokeToken', { id: ours })).status).toBe(404);
 		expect((await api(writeToken, 'GET', '/api/v1/sites')).status).toBe(200);
+	});
+
+	it('lists jobs changed since, fetches one with its points, records a point idempotently, and gives the pack', async () => {
+		// Fixture: the points of revision 2 count as approved (as if decided on the board), then the engineer issues one job.
+		const rev2 = await t.db
+			.selectFrom('survey_revision')
+			.select('id')
+			.where('survey_id', '=', surveyId)
+			.where('number', '=', 2)
+			.executeTakeFirstOrThrow();
+		await t.db.updateTable('revision_point').set({ status: 'approved', decision: 'approved' }).where('revision_id', '=', rev2.id).execute();
+		const latest = (await approvedPointsOfLatestRevision(t.db, org, surveyId))!;
+		const since = new Date(Date.now() - 1000).toISOString();
+		const [job] = await issueJobs(
+			t.db,
+			null,
+			org,
+			surveyId,
+			{ userId: await userId('engineer@harrowgate.example'), role: 'engineer' },
+			{
+				revision: 2,
+				note: '',
+				jobs: [
+					{
+						title: null,
+						assigneeUserId: null,
+						outageStart: null,
+						outageEnd: null,
+						dueDate: null,
+						lockoutRequested: false,
+						notes: '',
+						points: latest.points.map((p) => ({ revisionBoardId: p.revision_board_id, pointId: p.point_id }))
+					}
+				]
+			}
+		);
+		const feed = await (await api(readToken, 'GET', `/api/v1/jobs?since=${encodeURIComponent(since)}`)).json();
+		expect(feed.items.map((j: { id: string }) => j.id)).toEqual([job.id]);
+		const detail = await (await api(readToken, 'GET', `/api/v1/jobs/${job.id}`)).json();
+		expect(detail.jobPoints).toHaveLength(3);
+		expect(detail.jobPoints[0]).toHaveProperty('preparation');
+		expect(detail.jobPoints[0].record).toBeNull();
+		const point = detail.jobPoints[0].id;
+		const record = {
+			mounting: 'stud',
+			torqueNm: 8,
+			supplyV: 23.6,
+			polarity: 'ok',
+			readyAt: '2026-03-03T09:40:00Z',
+			baselineStartAt: '2026-03-03T10:00:00Z'
+		};
+		// A read token cannot record; a read-write token can, and a replay with its key stores one record.
+		expect((await api(readToken, 'POST', `/api/v1/jobs/${job.id}/points/${point}/record`, record)).status).toBe(403);
+		const r1 = await api(writeToken, 'POST', `/api/v1/jobs/${job.id}/points/${point}/record`, record, { 'idempotency-key': 'rec-1' });
+		expect(r1.status).toBe(200);
+		const body1 = await r1.json();
+		expect(Array.isArray(body1.findings)).toBe(true);
+		const recordedAt = (await t.db.selectFrom('job_point').select('recorded_at').where('id', '=', point).executeTakeFirstOrThrow())
+			.recorded_at;
+		const r2 = await api(writeToken, 'POST', `/api/v1/jobs/${job.id}/points/${point}/record`, record, { 'idempotency-key': 'rec-1' });
+		expect(r2.headers.get('idempotent-replayed')).toBe('true');
+		expect(await r2.json()).toEqual(body1);
+		expect(
+			(await t.db.selectFrom('job_point').select('recorded_at').where('id', '=', point).executeTakeFirstOrThrow()).recorded_at
+		).toEqual(recordedAt);
+		// Bad input gets the tablet form's messages.
+		const bad = await api(writeToken, 'POST', `/api/v1/jobs/${job.id}/points/${point}/record`, { ...record, supplyV: 'lots' });
+		expect(bad.status).toBe(400);
+		expect((await bad.json()).errors.supplyV).toBeTruthy();
+		const pack = await api(readToken, 'GET', `/api/v1/jobs/${job.id}/pack`);
+		expect(pack.status).toBe(200);
+		expect(pack.headers.get('content-type')).toBe('application/pdf');
+		expect(
+			Buffer.from(await pack.arrayBuffer())
+				.subarray(0, 5)
+				.toString()
+		).toBe('%PDF-');
+		// Another organisation's token sees none of it.
+		const otherAdmin = new Client(app.url);
+		await otherAdmin.signIn(other.people.admin.email, PASSWORD);
+		const otherToken = await makeToken(otherAdmin, { kind: 'service', name: 'Elsewhere jobs', role: 'engineer', scope: 'read_write' });
+		expect((await api(otherToken, 'GET', `/api/v1/jobs/${job.id}`)).status).toBe(404);
+		expect((await api(otherToken, 'GET', `/api/v1/jobs/${job.id}/pack`)).status).toBe(404);
+		expect((await api(otherToken, 'POST', `/api/v1/jobs/${job.id}/points/${point}/record`, record)).status).toBe(404);
+		expect((await (await api(otherToken, 'GET', '/api/v1/jobs')).json()).items).toEqual([]);
 	});
 
 	it('serves the OpenAPI document to a token', async () => {
