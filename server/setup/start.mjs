@@ -6,6 +6,7 @@ const host = process.env.HOST ?? '127.0.0.1';
 const port = Number(process.env.PORT ?? 3000);
 const pgPort = Number(process.env.SPOTFACE_PG_PORT ?? 54329);
 const smtpPort = Number(process.env.SMTP_FAKE_PORT ?? 2525);
+const receiverPort = Number(process.env.WEBHOOK_RECEIVER_PORT ?? 2527);
 
 const cluster = prepare({ clusterDir: '.data/pg', port: pgPort, dbName: 'spotface', seed: true });
 runStep('Building the app', 'npx', ['vite', 'build', '--logLevel', 'warn']);
@@ -25,6 +26,19 @@ if (!process.env.SMTP_URL) {
 	// on only while the app listens on loopback alone (and it answers loopback clients only).
 	env.DEV_MAIL_VIEWER = process.env.DEV_MAIL_VIEWER ?? (/^(127\.|localhost$|::1$)/.test(host) ? '1' : '0');
 	children.push(spawnChild('node', ['--import', 'tsx', 'server/setup/mail-server.ts'], { ...env, SMTP_FAKE_PORT: String(smtpPort) }));
+}
+// Webhooks to this machine (the local receiver below) are allowed only while the app listens on
+// loopback alone; set WEBHOOK_ALLOW_PRIVATE yourself otherwise (see README, Integration API).
+const loopbackOnly = /^(127\.|localhost$|::1$)/.test(host);
+if (process.env.WEBHOOK_ALLOW_PRIVATE === undefined && loopbackOnly) env.WEBHOOK_ALLOW_PRIVATE = 'loopback';
+if (loopbackOnly) {
+	children.push(
+		spawnChild('node', ['--import', 'tsx', 'server/setup/webhook-receiver.ts'], {
+			...env,
+			WEBHOOK_RECEIVER_PORT: String(receiverPort),
+			WEBHOOK_RECEIVER_DIR: '.data/webhooks'
+		})
+	);
 }
 // The app runs as a child: if it exits unexpectedly it is started again (after 1 s, doubling to
 // 30 s while it keeps failing within a minute of starting); the database keeps running.
@@ -67,6 +81,8 @@ function banner() {
 	if (env.DEV_MAIL_VIEWER === '1') log(`E-mail goes to a local test mail server; read it on this machine at ${env.ORIGIN}/dev/mail`);
 	else if (env.MAIL_CAPTURE_DIR)
 		log(`E-mail goes to a local test mail server, kept in ${env.MAIL_CAPTURE_DIR} (mail viewer off: HOST is not loopback)`);
+	if (loopbackOnly)
+		log(`Webhooks: a local test receiver takes deliveries at http://127.0.0.1:${receiverPort}/hooks/spotface (kept in .data/webhooks)`);
 	log('Press Ctrl-C to stop the app and the database.');
 }
 

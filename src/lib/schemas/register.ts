@@ -195,7 +195,8 @@ function withIssues<T extends z.ZodType>(schema: T, check: (v: z.output<T>) => I
 		out = out.refine((v) => !check(v)[path], {
 			path: [path],
 			error: (iss) => check(iss.input as z.output<T>)[path] ?? 'Invalid value.',
-			when: () => true
+			// Also when single fields failed, but only on an object (a body of `null` is a plain 400).
+			when: (payload) => typeof payload.value === 'object' && payload.value !== null
 		});
 	}
 	return out;
@@ -271,6 +272,24 @@ export type MachineListQuery = z.infer<typeof machineListQuerySchema>;
 export function queryObject(url: URL): Record<string, string> {
 	return Object.fromEntries(url.searchParams.entries());
 }
+
+/** GET /machines/:id/media */
+export const mediaListQuerySchema = pageQuerySchema.extend({ kind: z.enum(MEDIA_KINDS).optional().catch(undefined) });
+
+/** POST /machines/:id/media: the form fields beside the `file`. */
+export const mediaUploadFieldsSchema = z.object({
+	kind: z.preprocess((x) => (x === '' || x == null ? undefined : x), z.enum(MEDIA_KINDS, { error: 'Choose photo or drawing.' }).optional()),
+	caption: z.preprocess((x) => (x == null ? '' : x), z.string().trim().max(300, 'A caption has at most 300 characters.'))
+});
+
+/** POST /machines/import */
+export const machineImportQuerySchema = z.object({
+	siteId: z.uuid({ error: 'siteId must be a site id.' }).optional(),
+	mode: z
+		.enum(['all', 'valid'], { error: 'mode is "all" (nothing unless every row is valid) or "valid" (the good rows only).' })
+		.default('all'),
+	dryRun: z.enum(['true', 'false', '1', '0']).default('false')
+});
 
 export const mediaUpdateSchema = z.object({
 	caption: text(300, 'The caption').optional(),

@@ -4,6 +4,8 @@ import { APP_POOL_NAME, createDb, type DbHandle } from './db';
 import { createAuth, type Auth } from './auth/lucia';
 import { createMailer, type Mailer } from './mail/mailer';
 import { createThrottle, DEFAULT_THROTTLE, type Throttle } from './auth/throttle';
+import { parsePolicy, type PrivatePolicy } from './integration/outbound';
+import type { QueueSettings } from './queue/boss';
 
 export interface AppConfig {
 	origin: string;
@@ -14,6 +16,9 @@ export interface AppConfig {
 	/** DEV_MAIL_VIEWER=1: /dev/mail shows every captured message, reset links included. */
 	devMailViewer: boolean;
 	dataDir: string;
+	/** Which private addresses webhooks may be sent to (WEBHOOK_ALLOW_PRIVATE). */
+	webhookPolicy: PrivatePolicy;
+	queue: QueueSettings;
 }
 
 interface Context {
@@ -40,6 +45,13 @@ function intEnv(name: string, fallback: number): number {
 	return Number.isFinite(v) && v > 0 ? v : fallback;
 }
 
+/** A count that may be 0 (e.g. no retries). */
+function countEnv(name: string, fallback: number): number {
+	const raw = setting(name);
+	const v = Number(raw);
+	return raw !== undefined && raw !== '' && Number.isInteger(v) && v >= 0 ? v : fallback;
+}
+
 export function context(): Context {
 	if (ctx) return ctx;
 	const url = setting('DATABASE_URL');
@@ -60,7 +72,13 @@ export function context(): Context {
 			databaseUrl: url,
 			mailCaptureDir: setting('MAIL_CAPTURE_DIR') || null,
 			devMailViewer: setting('DEV_MAIL_VIEWER') === '1',
-			dataDir: setting('DATA_DIR') || '.data'
+			dataDir: setting('DATA_DIR') || '.data',
+			webhookPolicy: parsePolicy(setting('WEBHOOK_ALLOW_PRIVATE')),
+			queue: {
+				pollSeconds: Math.max(0.5, Number(setting('QUEUE_POLL_SECONDS')) || 2),
+				mail: { retryLimit: countEnv('MAIL_RETRY_LIMIT', 4), retryDelay: intEnv('MAIL_RETRY_DELAY_SEC', 60) },
+				webhook: { retryLimit: countEnv('WEBHOOK_RETRY_LIMIT', 8), retryDelay: intEnv('WEBHOOK_RETRY_DELAY_SEC', 30) }
+			}
 		},
 		throttle: createThrottle(handle.pool, {
 			signInFreePerAccountAddress: intEnv('RATE_LIMIT_SIGNIN_FREE_PER_ACCOUNT_ADDRESS', d.signInFreePerAccountAddress),

@@ -33,7 +33,8 @@ const EXPECTED: Record<string, string> = {
 	'job.issue': 'AE',
 	'job.record': 'AET',
 	'job.close': 'AE',
-	'audit.read': 'AE'
+	'audit.read': 'AE',
+	'integration.manage': 'A'
 };
 const LETTER = { admin: 'A', engineer: 'E', technician: 'T', viewer: 'V' } as const;
 

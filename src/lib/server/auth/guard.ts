@@ -42,7 +42,8 @@ export const PERMISSIONS = {
 	'job.issue': ['admin', 'engineer'],
 	'job.record': ['admin', 'engineer', 'technician'],
 	'job.close': ['admin', 'engineer'],
-	'audit.read': ['admin', 'engineer']
+	'audit.read': ['admin', 'engineer'],
+	'integration.manage': ['admin']
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Action = keyof typeof PERMISSIONS;
@@ -51,6 +52,11 @@ export const ACTIONS = Object.keys(PERMISSIONS) as Action[];
 export function can(role: Role | null | undefined, action: Action): boolean {
 	if (!role) return false;
 	return (PERMISSIONS[action] as readonly Role[]).includes(role);
+}
+
+/** Actions that only read; a read-only API token is limited to these. */
+export function isReadAction(action: Action): boolean {
+	return action.endsWith('.read');
 }
 
 export function isRole(value: unknown): value is Role {

@@ -37,9 +37,12 @@ export interface Viewer {
 	organisationId: string;
 	organisationName: string;
 	role: Role;
+	/** The session's id; '' for a request authorised by an API token. */
 	sessionId: string;
 	/** How this person reads and types measurements (stored values are SI). */
 	unitSystem: 'metric' | 'us';
+	/** Set when an API token (Authorization: Bearer) authorised the request. */
+	token?: { id: string; scope: 'read' | 'read_write'; kind: 'person' | 'service' };
 }
 
 /** Parse the session cookie out of a raw Cookie header (used by the socket handshake). */

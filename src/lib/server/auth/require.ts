@@ -1,7 +1,7 @@
 // SvelteKit-facing guards. They ask guard.ts; pages get redirects or error pages, the API gets
 // problem+json.
 import { error, redirect } from '@sveltejs/kit';
-import { can, type Action } from './guard';
+import { can, isReadAction, type Action } from './guard';
 import type { Viewer } from './lucia';
 import { problem } from '../http/problem';
 
@@ -20,5 +20,8 @@ export function requireApi(locals: App.Locals, action: Action): Viewer | Respons
 	const viewer = locals.viewer;
 	if (!viewer) return problem(401, 'Sign in first.');
 	if (!can(viewer.role, action)) return problem(403, `Your role (${viewer.role}) does not allow ${action}.`);
+	if (viewer.token?.scope === 'read' && !isReadAction(action)) return problem(403, readOnlyTokenMessage);
 	return viewer;
 }
+
+export const readOnlyTokenMessage = 'This token is read-only: it cannot change anything. Ask an admin for a read-and-write token.';

@@ -230,6 +230,7 @@ export interface MediaTable {
 export type { SurveyStatus } from '../../survey/states';
 import type { SurveyStatus } from '../../survey/states';
 import type { ReviewTables } from './review-types';
+import type { IntegrationTables } from './integration-types';
 import type { JobTables } from './job-types';
 export type SurveyAssigneeRole = 'engineer' | 'technician';
 /** bigint columns come back as strings (pg does not narrow them to number); optional on insert. */
@@ -297,7 +298,7 @@ export interface BoardClientTable {
 	claimed_at: Generated<Date>;
 }
 
-export interface Database extends ReviewTables, JobTables {
+export interface Database extends ReviewTables, JobTables, IntegrationTables {
 	organisation: OrganisationTable;
 	app_user: AppUserTable;
 	member: MemberTable;

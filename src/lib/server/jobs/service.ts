@@ -16,6 +16,7 @@ import { MOUNTINGS, type Mounting } from '../../trade/evaluate-point';
 import { checkClose, type CloseBlocker } from '../../jobs/closing';
 import type { IssueJobsInput, RecordPointInput } from '../../schemas/job';
 import { approvedPointsOfLatestRevision, jobReference } from './repository';
+import { emitEvent } from '../integration/webhooks';
 
 export class JobError extends Error {
 	constructor(
@@ -175,6 +176,15 @@ export async function issueJobs(
 			subjectId: surveyId,
 			data: { revision: input.revision, jobs: out.map((o) => jobReference(o.number)) }
 		});
+		// Webhooks asking for issued jobs hear of each one when this commits.
+		for (const o of out) {
+			await emitEvent(trx, organisationId, 'job.issued', {
+				job: { id: o.id, reference: jobReference(o.number), title: o.title, due: o.due, assignee: o.assignee?.name ?? null },
+				survey: { id: surveyId, title: survey.title },
+				revision: { id: latest.revision.id, number: latest.revision.number },
+				href: `/api/v1/jobs/${o.id}`
+			});
+		}
 		if (mail) {
 			for (const o of out) {
 				if (!o.assignee) continue;
@@ -355,6 +365,11 @@ export async function closeJob(db: DB, organisationId: string, jobId: string, ac
 			subjectType: 'installation_job',
 			subjectId: jobId,
 			data: { reference: jobReference(job.number), note: note.trim(), overridden: check.blockers.map((b) => `${b.label}: ${b.why}`) }
+		});
+		await emitEvent(trx, organisationId, 'job.closed', {
+			job: { id: jobId, reference: jobReference(job.number), closedAt: now.toISOString(), note: note.trim() },
+			survey: { id: job.survey_id },
+			href: `/api/v1/jobs/${jobId}`
 		});
 		const open = await trx
 			.selectFrom('installation_job')

@@ -11,6 +11,7 @@ import { announceBoardState } from '../boards/service';
 import { record } from '../db/audit';
 import { checkTransition, SURVEY_STATUS_LABEL, TRANSITION_NOTE_MAX, type SurveyStatus, type TransitionName } from '../../survey/states';
 import { RevisionContentError, writeRevision, type RevisionExceptionsNeeded } from './revisions';
+import { emitEvent } from '../integration/webhooks';
 
 export class WorkflowError extends Error {
 	constructor(
@@ -114,6 +115,13 @@ export async function transitionSurveyIn(
 			}
 			revision = written.revision;
 			await trx.updateTable('board').set({ frozen_at: now }).where('survey_id', '=', s.id).where('frozen_at', 'is', null).execute();
+			// Webhooks asking for approvals hear of it when this commits (and not if it does not).
+			const info = await trx.selectFrom('survey').select(['title', 'site_id']).where('id', '=', s.id).executeTakeFirstOrThrow();
+			await emitEvent(trx, input.organisationId, 'revision.approved', {
+				revision: { id: revision.id, number: revision.number, approvedAt: now.toISOString(), approvedBy: input.actor.userId },
+				survey: { id: s.id, title: info.title, siteId: info.site_id },
+				href: `/api/v1/revisions/${revision.id}`
+			});
 		}
 		if (input.name === 'reopen') {
 			await trx.updateTable('board').set({ frozen_at: null }).where('survey_id', '=', s.id).execute();

@@ -14,7 +14,8 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 	return {
 		organisation: { name: org!.name, createdAt: org!.created_at },
 		canManage: can(viewer.role, 'organisation.manage'),
-		canReadOutbox: can(viewer.role, 'mail.outbox.read')
+		canReadOutbox: can(viewer.role, 'mail.outbox.read'),
+		canManageIntegration: can(viewer.role, 'integration.manage')
 	};
 };
 

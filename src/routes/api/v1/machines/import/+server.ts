@@ -1,19 +1,10 @@
-import { z } from 'zod';
-import { queryObject } from '$lib/schemas/register';
+import { machineImportQuerySchema as query, queryObject } from '$lib/schemas/register';
 import { requireApi } from '$lib/server/auth/require';
 import { context } from '$lib/server/context';
 import { json, problem } from '$lib/server/http/problem';
 import { record } from '$lib/server/db/audit';
 import { decode, importMachineCsv, ImportRefused, MAX_CSV_BYTES, validateMachineCsv } from '$lib/server/register/csv';
 import type { RequestHandler } from './$types';
-
-const query = z.object({
-	siteId: z.uuid({ error: 'siteId must be a site id.' }).optional(),
-	mode: z
-		.enum(['all', 'valid'], { error: 'mode is "all" (nothing unless every row is valid) or "valid" (the good rows only).' })
-		.default('all'),
-	dryRun: z.enum(['true', 'false', '1', '0']).default('false')
-});
 
 /**
  * Body: the CSV file (text/csv). ?siteId= the site for rows without a site column;

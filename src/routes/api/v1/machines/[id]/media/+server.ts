@@ -1,5 +1,4 @@
-import { z } from 'zod';
-import { MEDIA_KINDS, pageQuerySchema, queryObject } from '$lib/schemas/register';
+import { mediaListQuerySchema as listQuery, mediaUploadFieldsSchema as fields, queryObject } from '$lib/schemas/register';
 import { requireApi } from '$lib/server/auth/require';
 import { context } from '$lib/server/context';
 import * as machines from '$lib/server/db/machines';
@@ -10,8 +9,6 @@ import { storeUpload } from '$lib/server/media/service';
 import { audit, errorResponse, isUuid, notFound } from '$lib/server/register/api';
 import type { RequestHandler } from './$types';
 
-const listQuery = pageQuerySchema.extend({ kind: z.enum(MEDIA_KINDS).optional().catch(undefined) });
-
 export const GET: RequestHandler = async ({ locals, params, url }) => {
 	const v = requireApi(locals, 'register.read');
 	if (v instanceof Response) return v;
@@ -20,11 +17,6 @@ export const GET: RequestHandler = async ({ locals, params, url }) => {
 	const q = listQuery.parse(queryObject(url));
 	return json(await media.listMedia(db, v.organisationId, params.id, q));
 };
-
-const fields = z.object({
-	kind: z.preprocess((x) => (x === '' || x == null ? undefined : x), z.enum(MEDIA_KINDS, { error: 'Choose photo or drawing.' }).optional()),
-	caption: z.preprocess((x) => (x == null ? '' : x), z.string().trim().max(300, 'A caption has at most 300 characters.'))
-});
 
 /** multipart/form-data with `file` (JPEG, PNG, WebP or PDF), optional `kind` and `caption`. */
 export const POST: RequestHandler = async ({ locals, params, request }) => {
