@@ -28,6 +28,7 @@ beforeAll(async () => {
 		.where('organisation_id', '=', org.id)
 		.where('title', '=', DEMO_SURVEY)
 		.executeTakeFirstOrThrow();
+	const board = await t.db.selectFrom('board').select('id').where('survey_id', '=', survey.id).executeTakeFirstOrThrow();
 	const member = await t.db.selectFrom('member').select('id').where('organisation_id', '=', org.id).executeTakeFirstOrThrow();
 	pages = [
 		'/',
@@ -40,6 +41,7 @@ beforeAll(async () => {
 		'/surveys',
 		'/surveys/new',
 		`/surveys/${survey.id}`,
+		`/surveys/${survey.id}/boards/${board.id}`,
 		'/calculators',
 		'/settings/organisation',
 		'/settings/profile',
