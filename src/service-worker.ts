@@ -15,6 +15,8 @@ const SHELL_FILES = [...build, ...files];
 
 const BOARD_PAGE = /^\/surveys\/[0-9a-f-]{36}\/boards\/[0-9a-f-]{36}\/?(__data\.json)?$/i;
 const MEDIA_IMAGE = /^\/api\/v1\/media\/[0-9a-f-]{36}\/(display|thumb)$/i;
+// A job page, so the installer can reopen it on site with no signal (records wait in IndexedDB).
+const JOB_PAGE = /^\/jobs\/[0-9a-f-]{36}\/?(__data\.json)?$/i;
 
 sw.addEventListener('install', (event) => {
 	event.waitUntil(
@@ -50,7 +52,7 @@ sw.addEventListener('fetch', (event) => {
 		event.respondWith(caches.match(url.pathname).then((hit) => hit ?? fetch(req)));
 		return;
 	}
-	if (BOARD_PAGE.test(url.pathname) || MEDIA_IMAGE.test(url.pathname)) {
+	if (BOARD_PAGE.test(url.pathname) || JOB_PAGE.test(url.pathname) || MEDIA_IMAGE.test(url.pathname)) {
 		// Network first, so the board is always current when there is signal; the last good
 		// answer when there is none.
 		event.respondWith(

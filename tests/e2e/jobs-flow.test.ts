@@ -10,6 +10,8 @@ import { openBrowser, signInPage, type Browser } from '../helpers/browser';
 import { SCENARIO_PASSWORD, scenarioPhoto, setUpBoardScenario } from '../helpers/board-scenario';
 import { readDocument } from '../../src/lib/server/collab/persistence';
 import { addPoint, addRoute, decidePoint } from '../../src/lib/board/model';
+import { Client } from '../helpers/http';
+import { hashPassword } from '../../src/lib/server/auth/password';
 
 let t: TestDatabase;
 let app: RunningApp;
@@ -213,5 +215,40 @@ describe('installation jobs', () => {
 		expect((await engineer.page.request.get(`${app.url}/jobs/${jobId}/pack?paper=A3`)).status()).toBe(400);
 		expect(engineer.errors).toEqual([]);
 		expect(tech.errors.filter((e) => !/Failed to fetch|ERR_INTERNET_DISCONNECTED|net::/.test(e))).toEqual([]);
+	});
+
+	it('another organisation gets 404 for the job, its pack, its export and its record; a viewer cannot record', async () => {
+		const hash = await hashPassword(SCENARIO_PASSWORD);
+		const other = await t.db.insertInto('organisation').values({ name: 'Other Water (test)' }).returning('id').executeTakeFirstOrThrow();
+		await t.db
+			.insertInto('app_user')
+			.values({ id: 'u-other', email: 'eng@other.test', name: 'Other Engineer', password_hash: hash })
+			.execute();
+		await t.db.insertInto('member').values({ organisation_id: other.id, user_id: 'u-other', role: 'engineer' }).execute();
+		const stranger = new Client(app.url);
+		await stranger.signIn('eng@other.test', SCENARIO_PASSWORD);
+		const point = await t.db.selectFrom('job_point').select('id').executeTakeFirstOrThrow();
+		expect((await stranger.request(`/jobs/${jobId}`)).status).toBe(404);
+		expect((await stranger.request(`/jobs/${jobId}/pack?paper=A4`)).status).toBe(404);
+		expect((await stranger.request(`/jobs/export?format=json&job=${jobId}`)).status).toBe(404);
+		const all = await (await stranger.request('/jobs/export?format=json')).json();
+		expect(all.jobs).toEqual([]);
+		const rec = await stranger.json('POST', `/api/v1/jobs/${jobId}/points/${point.id}/record`, { mounting: 'stud', supplyV: 24 });
+		expect(rec.status).toBe(404);
+		expect((await stranger.request('/jobs/export?format=csv&job=not-an-id')).status).toBe(400);
+
+		await t.db
+			.insertInto('app_user')
+			.values({ id: 'u-view', email: 'viewer@fenwick.test', name: 'Vic Viewer', password_hash: hash })
+			.execute();
+		const org = await t.db.selectFrom('member').select('organisation_id').where('user_id', '=', 'u-eng').executeTakeFirstOrThrow();
+		await t.db.insertInto('member').values({ organisation_id: org.organisation_id, user_id: 'u-view', role: 'viewer' }).execute();
+		const viewer = new Client(app.url);
+		await viewer.signIn('viewer@fenwick.test', SCENARIO_PASSWORD);
+		expect((await viewer.json('POST', `/api/v1/jobs/${jobId}/points/${point.id}/record`, { mounting: 'stud' })).status).toBe(403);
+		expect((await viewer.request(`/jobs/${jobId}/pack?paper=A4`)).status).toBe(200);
+		const csv = await viewer.request(`/jobs/export?format=csv&what=points&job=${jobId}`);
+		expect(csv.headers.get('content-disposition')).toBe('attachment; filename="J-0001-points.csv"');
+		expect((await csv.text()).split('\r\n').filter(Boolean)).toHaveLength(3); // header + P1 + P2
 	});
 });

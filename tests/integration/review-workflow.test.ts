@@ -51,7 +51,8 @@ describe('survey transitions over the API', () => {
 					const body = await res.json();
 					const tr = TRANSITIONS[name];
 					const roleOk = TRANSITION_ROLES[tr.action].includes(role);
-					const expected = !roleOk ? 403 : tr.from.includes(status) ? 200 : 409;
+					// Issuing jobs needs the jobs (the "Issue jobs" page): the bare move is refused with 409.
+					const expected = !roleOk ? 403 : tr.from.includes(status) && name !== 'issue_jobs' ? 200 : 409;
 					expect(res.status, `${name} by ${role} from ${status}: ${JSON.stringify(body)}`).toBe(expected);
 					const after = await rows();
 					const survey = await t.db.selectFrom('survey').select('status').where('id', '=', f.surveyId).executeTakeFirstOrThrow();

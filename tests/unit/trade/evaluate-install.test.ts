@@ -62,3 +62,52 @@ describe('installationChecklist', () => {
 		expect(SAFETY_CAUTIONS.some((c) => /local codes/.test(c.text))).toBe(true);
 	});
 });
+
+describe('evaluateInstalled on a job record (plan, commissioning times, photo)', () => {
+	const job = {
+		mounting: 'stud' as const,
+		torqueNm: 8,
+		supplyV: 24,
+		polarityOk: true,
+		plannedMounting: 'stud' as const,
+		readyAt: '2026-12-07T09:00:00Z',
+		baselineStartAt: '2026-12-07T09:05:00Z',
+		deviation: '',
+		deviationReason: '',
+		photo: true
+	};
+	test('a complete record as planned passes every check', () => {
+		const r = evaluateInstalled(job);
+		expect(r.worst).toBe('pass');
+		expect(r.findings.map((f) => f.rule).sort()).toEqual([
+			'install.baseline',
+			'install.photo',
+			'install.polarity',
+			'install.ready',
+			'install.supply-voltage',
+			'mounting.stud-torque'
+		]);
+	});
+	test('another method than planned fails until the reason is given, then warns', () => {
+		const changed = evaluateInstalled({ ...job, mounting: 'bonded_pad' });
+		expect(changed.findings.find((f) => f.rule === 'install.deviation')).toMatchObject({ severity: 'fail' });
+		const explained = evaluateInstalled({ ...job, mounting: 'bonded_pad', deviationReason: 'Wall too thin at the seat' });
+		expect(explained.findings.find((f) => f.rule === 'install.deviation')!.severity).toBe('warn');
+	});
+	test('a baseline started before the device was ready fails; missing times and photo warn', () => {
+		expect(
+			evaluateInstalled({ ...job, baselineStartAt: '2026-12-07T08:59:00Z' }).findings.find((f) => f.rule === 'install.baseline')!.severity
+		).toBe('fail');
+		const missing = evaluateInstalled({ ...job, readyAt: null, baselineStartAt: null, photo: false });
+		expect(missing.worst).toBe('warn');
+		expect(
+			missing.findings
+				.filter((f) => f.severity === 'warn')
+				.map((f) => f.rule)
+				.sort()
+		).toEqual(['install.baseline', 'install.photo', 'install.ready']);
+	});
+	test('19.8 V is outside 20.4–28.8 V (IEC 61131-2, percentages from memory)', () => {
+		expect(evaluateInstalled({ ...job, supplyV: 19.8 }).findings.find((f) => f.rule === 'install.supply-voltage')!.severity).toBe('fail');
+	});
+});

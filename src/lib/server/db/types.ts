@@ -69,7 +69,8 @@ export interface AuditEventTable {
 
 /** 'recipient': only the mailbox owner may see it; 'organisation': the sending organisation's outbox lists it. */
 export type MailAudience = 'recipient' | 'organisation';
-export type MailPurpose = 'invitation' | 'password-reset' | 'reset-no-account' | 'sign-up' | 'sign-up-existing' | 'mention' | 'job-assigned' | 'other';
+export type MailPurpose =
+	'invitation' | 'password-reset' | 'reset-no-account' | 'sign-up' | 'sign-up-existing' | 'mention' | 'job-assigned' | 'other';
 
 export interface MailOutboxTable {
 	id: Generated<string>;

@@ -47,18 +47,18 @@ export interface TransitionResult {
  * the exceptions confirmed), 400 when a required note is missing.
  */
 export async function transitionSurvey(db: DB, input: TransitionInput): Promise<TransitionResult> {
-	if (input.name === 'issue_jobs') {
-		// Issuing needs the jobs themselves (points, assignee, outage window): see jobs/issue.ts.
-		throw new WorkflowError(409, "Jobs are issued from the survey's “Issue jobs” page, with their points, assignees and dates.");
-	}
-	return db.transaction().execute((trx) => transitionSurveyIn(trx, input));
+	return db.transaction().execute((trx) => transitionSurveyIn(trx, input, { generic: true }));
 }
 
 /**
  * The move inside the caller's transaction (issuing jobs writes the jobs and the move together).
  * Same checks and errors as transitionSurvey.
  */
-export async function transitionSurveyIn(trx: Transaction<Database>, input: TransitionInput): Promise<TransitionResult> {
+export async function transitionSurveyIn(
+	trx: Transaction<Database>,
+	input: TransitionInput,
+	opts: { generic?: boolean } = {}
+): Promise<TransitionResult> {
 	const note = (input.note ?? '').trim();
 	if (note.length > TRANSITION_NOTE_MAX) throw new WorkflowError(400, `A note has at most ${TRANSITION_NOTE_MAX} characters.`);
 	{
@@ -75,6 +75,11 @@ export async function transitionSurveyIn(trx: Transaction<Database>, input: Tran
 		const t = check.transition;
 		// The guard is the authority on roles; the shared table is its copy for the browser.
 		if (!can(input.actor.role, t.action)) throw new WorkflowError(403, `Your role cannot ${t.label.toLowerCase()}.`);
+		if (opts.generic && t.name === 'issue_jobs') {
+			// Issuing needs the jobs themselves (points, assignees, dates): jobs/service.ts issueJobs,
+			// so a survey never reads "jobs issued" without its jobs.
+			throw new WorkflowError(409, "Jobs are issued from the survey's “Issue jobs” page, with their points, assignees and dates.");
+		}
 
 		// Lock the boards (FOR UPDATE waits for updates being appended right now), so nothing
 		// lands on a board after the move that should have stopped it.
