@@ -60,7 +60,7 @@ async function write(boardId: string, edit: (doc: Y.Doc) => void) {
 beforeAll(async () => {
 	t = await createTestDatabase();
 	storage = diskStorage(mkdtempSync(join(tmpdir(), 'spotface-jobs-')));
-	await seedDemo(t.db, [], { storage });
+	await seedDemo(t.db, [], { storage, states: false });
 	org = (await t.db.selectFrom('organisation').select('id').where('name', '=', DEMO_ORG).executeTakeFirstOrThrow()).id;
 	surveyId = (
 		await t.db

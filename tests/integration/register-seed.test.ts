@@ -17,7 +17,7 @@ beforeAll(async () => {
 afterAll(async () => t?.drop());
 
 describe('demo register', () => {
-	it('seeds an invented works with areas, 24 V supply points, machines, bearings and a sketch each; twice changes nothing', async () => {
+	it('seeds an invented works with areas, 24 V supply points, a dozen machines of five kinds, bearings and a sketch each; twice changes nothing', async () => {
 		const storage = diskStorage(mkdtempSync(join(tmpdir(), 'spotface-seed-')));
 		await seedDemo(t.db, [], { storage });
 		await seedDemo(t.db, [], { storage });
@@ -33,17 +33,23 @@ describe('demo register', () => {
 				).n
 			);
 		expect(await count('site')).toBe(1);
-		expect(await count('area')).toBe(2);
-		expect(await count('supply_point')).toBe(4);
-		expect(await count('machine')).toBe(8);
-		expect(await count('bearing')).toBe(16);
-		expect(await count('media')).toBe(8);
+		expect(await count('area')).toBe(3);
+		expect(await count('supply_point')).toBe(5);
+		expect(await count('machine')).toBe(12);
+		expect(await count('bearing')).toBe(24);
+		// A sketch per machine, and a drawn "as installed" picture per point of the closed survey's job.
+		expect(await count('media')).toBe(12 + 2);
 		const site = await t.db.selectFrom('site').select('name').where('organisation_id', '=', org.id).executeTakeFirstOrThrow();
 		expect(site.name).toBe(DEMO_SITE);
 		const kinds = (await t.db.selectFrom('machine').select('kind').where('organisation_id', '=', org.id).execute()).map((m) => m.kind);
-		expect(new Set(kinds)).toEqual(new Set(['motor', 'pump', 'blower', 'fan']));
+		expect(new Set(kinds)).toEqual(new Set(['motor', 'pump', 'blower', 'fan', 'compressor']));
 		expect(await t.db.selectFrom('machine').select('hazardous_zone_note').where('hazardous_area', '=', true).execute()).toHaveLength(1);
-		const media = await t.db.selectFrom('media').selectAll().where('organisation_id', '=', org.id).executeTakeFirstOrThrow();
+		const media = await t.db
+			.selectFrom('media')
+			.selectAll()
+			.where('organisation_id', '=', org.id)
+			.orderBy('created_at')
+			.executeTakeFirstOrThrow();
 		const thumb = await storage.get(media.thumb_key);
 		expect((await sharp(thumb!).metadata()).format).toBe('webp');
 	});

@@ -27,7 +27,7 @@ let tech: { userId: string; role: 'technician' };
 
 beforeAll(async () => {
 	t = await createTestDatabase();
-	await seedDemo(t.db, [], { storage: diskStorage(mkdtempSync(join(tmpdir(), 'spotface-rev-'))) });
+	await seedDemo(t.db, [], { storage: diskStorage(mkdtempSync(join(tmpdir(), 'spotface-rev-'))), states: false });
 	org = (await t.db.selectFrom('organisation').select('id').where('name', '=', DEMO_ORG).executeTakeFirstOrThrow()).id;
 	surveyId = (
 		await t.db

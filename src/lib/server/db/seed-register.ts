@@ -1,5 +1,6 @@
-// Demo register: an invented water-treatment works with two areas, 24 V DC supply points and
-// eight machines with bearings, plus a drawn sketch per machine so the board has a picture.
+// Demo register: an invented water-treatment works with three areas, 24 V DC supply points and
+// twelve machines (motors, pumps, fans, a blower, a compressor) with bearings, plus a drawn
+// sketch per machine so the board has a picture.
 // Idempotent: the site is looked up by name, machines by tag.
 import sharp from 'sharp';
 import type { DB } from './index';
@@ -23,7 +24,7 @@ interface DemoMachine {
 	tag: string;
 	name: string;
 	kind: MachineKind;
-	area: 0 | 1;
+	area: 0 | 1 | 2;
 	speed: number;
 	mode: SpeedMode;
 	signal: boolean;
@@ -161,19 +162,73 @@ const MACHINES: DemoMachine[] = [
 		foundation: 'rigid',
 		notes: 'Progressive-cavity pump on a gearbox; low speed, no speed signal wired yet.',
 		bearings: [bearing('drive_end', 'gearbox output', '6206'), bearing('non_drive_end', 'gearbox input', '6205')]
+	},
+	{
+		tag: 'TW-M01',
+		name: 'Treated water pump 1 motor',
+		kind: 'motor',
+		area: 2,
+		speed: 1480,
+		mode: 'constant',
+		signal: false,
+		kw: 45,
+		foundation: 'rigid',
+		notes: 'TEFC motor on a common baseplate with TW-P01.',
+		bearings: [bearing('drive_end', 'motor', '6313'), bearing('non_drive_end', 'motor', '6311')]
+	},
+	{
+		tag: 'TW-P01',
+		name: 'Treated water pump 1',
+		kind: 'pump',
+		area: 2,
+		speed: 1480,
+		mode: 'constant',
+		signal: false,
+		kw: 45,
+		foundation: 'rigid',
+		notes: 'Split-case pump feeding the service reservoir.',
+		bearings: [bearing('drive_end', 'pump', '6311'), bearing('non_drive_end', 'pump', '6309')]
+	},
+	{
+		tag: 'IA-M01',
+		name: 'Instrument air compressor motor',
+		kind: 'motor',
+		area: 2,
+		speed: 2960,
+		mode: 'constant',
+		signal: false,
+		kw: 22,
+		foundation: 'rigid',
+		notes: 'Flange-mounted on the compressor frame.',
+		bearings: [bearing('drive_end', 'motor', '6309'), bearing('non_drive_end', 'motor', '6208')]
+	},
+	{
+		tag: 'IA-C01',
+		name: 'Instrument air compressor',
+		kind: 'compressor',
+		area: 2,
+		speed: 2960,
+		mode: 'constant',
+		signal: false,
+		kw: 22,
+		foundation: 'rigid',
+		notes: 'Oil-injected screw compressor in a canopy; the receiver stands beside it.',
+		bearings: [bearing('drive_end', 'compressor', '6309'), bearing('non_drive_end', 'compressor', '6208')]
 	}
 ];
 
 const AREAS = [
 	{ name: 'Raw water pumping station', notes: 'Ground floor, pump hall. Access via the east door.' },
-	{ name: 'Aeration blower house', notes: 'Hearing protection needed while the blowers run.' }
+	{ name: 'Aeration blower house', notes: 'Hearing protection needed while the blowers run.' },
+	{ name: 'Treated water and compressed air', notes: 'Plant room under the control building; the compressor starts by itself.' }
 ];
 
-const SUPPLY_POINTS: Array<{ area: 0 | 1; name: string; tag: string; note: string; maxA: number | null }> = [
+const SUPPLY_POINTS: Array<{ area: 0 | 1 | 2; name: string; tag: string; note: string; maxA: number | null }> = [
 	{ area: 0, name: 'Field junction box JB-RW1', tag: 'JB-RW1', note: 'West wall beside RW-P01, 1.4 m above floor', maxA: 2 },
 	{ area: 0, name: 'Marshalling cabinet MC-RW', tag: 'MC-RW', note: 'Control room end of the pump hall', maxA: 4 },
 	{ area: 1, name: 'Field junction box JB-AB1', tag: 'JB-AB1', note: 'On the cable tray upright north of AB-01', maxA: 2 },
-	{ area: 1, name: 'Distribution board DB-AB 24 V section', tag: 'DB-AB-24', note: 'Electrical room; qualified person only', maxA: null }
+	{ area: 1, name: 'Distribution board DB-AB 24 V section', tag: 'DB-AB-24', note: 'Electrical room; qualified person only', maxA: null },
+	{ area: 2, name: 'Field junction box JB-TW1', tag: 'JB-TW1', note: 'Column C3 between TW-P01 and the compressor', maxA: 2 }
 ];
 
 export async function seedRegister(db: DB, organisationId: string, opts: { storage?: Storage } = {}) {
@@ -357,6 +412,15 @@ export async function sketch(m: { kind: MachineKind; tag: string; name: string }
 		shaft(740, 910, 630);
 		coupling(900, 630);
 		housing(790, 630);
+	} else if (m.kind === 'compressor') {
+		motor(900, 480, 520, 300);
+		shaft(640, 810, 630);
+		coupling(730, 630);
+		parts.push(
+			`<rect x="200" y="400" width="420" height="420" rx="30" fill="#7d8f7a" stroke="${dark}" stroke-width="6"/>`,
+			`<rect x="260" y="300" width="160" height="100" fill="${steel}" stroke="${dark}" stroke-width="5"/>`,
+			`<rect x="1460" y="260" width="110" height="600" rx="55" fill="#a9b4bf" stroke="${dark}" stroke-width="5"/>`
+		);
 	} else {
 		motor(820, 480, 560, 300);
 		parts.push(`<rect x="200" y="430" width="440" height="380" rx="20" fill="#7d8f7a" stroke="${dark}" stroke-width="6"/>`);
