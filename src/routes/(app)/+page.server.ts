@@ -4,6 +4,7 @@ import { context } from '$lib/server/context';
 import { mentionsOf } from '$lib/server/review/comments';
 import { awaitingSurveys } from '$lib/server/review/awaiting';
 import { dashboardOf } from '$lib/server/jobs/dashboard';
+import { firstRun } from '$lib/server/first-run';
 import { plainBody } from '$lib/survey/mentions';
 import { SETTLED_STATUSES } from '$lib/survey/states';
 import type { PageServerLoad } from './$types';
@@ -11,7 +12,7 @@ import type { PageServerLoad } from './$types';
 export const load: PageServerLoad = async ({ locals, url }) => {
 	const viewer = requirePage(locals, 'organisation.read', url);
 	const db = context().handle.db;
-	const [memberCount, openInvitations, mySurveys, awaiting, mentions, dashboard] = await Promise.all([
+	const [memberCount, openInvitations, mySurveys, awaiting, mentions, dashboard, start] = await Promise.all([
 		db
 			.selectFrom('member')
 			.select((eb) => eb.fn.countAll<string>().as('n'))
@@ -41,7 +42,8 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 			.execute(),
 		awaitingSurveys(db, viewer.organisationId, viewer.userId, viewer.role),
 		mentionsOf(db, viewer.organisationId, viewer.userId, 10),
-		dashboardOf(db, viewer.organisationId, { userId: viewer.userId, role: viewer.role })
+		dashboardOf(db, viewer.organisationId, { userId: viewer.userId, role: viewer.role }),
+		firstRun(db, viewer.organisationId, viewer.role)
 	]);
 	return {
 		welcome: url.searchParams.has('welcome'),
@@ -51,6 +53,7 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 		canInvite: can(viewer.role, 'member.invite'),
 		awaiting,
 		dashboard,
+		firstRun: start,
 		mentions: mentions.map((m) => ({
 			id: m.id,
 			surveyId: m.survey_id,
