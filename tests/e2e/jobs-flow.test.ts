@@ -10,6 +10,7 @@ import { openBrowser, signInPage, type Browser } from '../helpers/browser';
 import { SCENARIO_PASSWORD, scenarioPhoto, setUpBoardScenario } from '../helpers/board-scenario';
 import { readDocument } from '../../src/lib/server/collab/persistence';
 import { addPoint, addRoute, decidePoint } from '../../src/lib/board/model';
+import { closeJobOnPage, fillRecord, issueOneJobFromOverview, localDate, saveRecord } from '../helpers/job-steps';
 import { Client } from '../helpers/http';
 import { hashPassword } from '../../src/lib/server/auth/password';
 
@@ -118,16 +119,10 @@ const jobPoint = (label: string) =>
 
 describe('installation jobs', () => {
 	it('the overview sends the engineer to issue the jobs; the engineer issues one job for the pump', async () => {
-		await engineer.page.goto(app.url + '/');
-		const issueLine = engineer.page.getByTestId('dashboard-issue').getByRole('link', { name: /Pump hall spring walk/ });
-		await Promise.all([engineer.page.waitForURL(/\/jobs\/new$/), issueLine.click()]);
-		expect(await engineer.page.getByTestId('issue-points').locator('li').count()).toBe(2);
-		const due = new Date();
-		due.setDate(due.getDate() + 3);
-		const p = (n: number) => String(n).padStart(2, '0');
-		await engineer.page.getByLabel('Due date').fill(`${due.getFullYear()}-${p(due.getMonth() + 1)}-${p(due.getDate())}`);
-		await engineer.page.getByRole('button', { name: 'Issue 1 job' }).click();
-		await engineer.page.waitForURL(new RegExp(`/surveys/${surveyId}\\?jobs=issued$`));
+		await issueOneJobFromOverview(engineer.page, app.url, /Pump hall spring walk/, localDate(3), async () => {
+			expect(await engineer.page.getByTestId('issue-points').locator('li').count()).toBe(2);
+		});
+		expect(engineer.page.url()).toMatch(new RegExp(`/surveys/${surveyId}\\?jobs=issued$`));
 		await expect.poll(status).toBe('jobs_issued');
 		const job = await t.db.selectFrom('installation_job').select(['id', 'assignee_user_id', 'lockout_required']).executeTakeFirstOrThrow();
 		jobId = job.id;
@@ -151,16 +146,14 @@ describe('installation jobs', () => {
 		await form.getByLabel('Torque applied (N·m)').fill('12');
 		await expect.poll(() => form.getByTestId('record-findings').getAttribute('data-worst')).toBe('fail');
 		expect(await form.getByTestId('record-findings').textContent()).toContain('above the 10 N·m limit');
-		await form.getByLabel('Torque applied (N·m)').fill('8');
-		await form.getByLabel('Supply voltage at the sensor (V)').fill('23.9');
-		await form.getByLabel('Polarity measured').selectOption('ok');
-		await form.getByRole('button', { name: 'Now' }).first().click();
-		await form.getByRole('button', { name: 'Now' }).nth(1).click();
-		await form
-			.getByLabel('Photo of the installed sensor')
-			.setInputFiles({ name: 'p1.jpg', mimeType: 'image/jpeg', buffer: await scenarioPhoto() });
+		await fillRecord(tech.page, 'P1', {
+			torqueNm: '8',
+			supplyV: '23.9',
+			polarity: 'ok',
+			photo: { name: 'p1.jpg', mimeType: 'image/jpeg', buffer: await scenarioPhoto() }
+		});
 		await expect.poll(() => form.getByTestId('record-findings').getAttribute('data-worst')).toBe('pass');
-		await form.getByRole('button', { name: 'Save the record of P1' }).click();
+		await saveRecord(tech.page, 'P1');
 		await expect.poll(async () => (await jobPoint('P1')).recorded_at, { timeout: 15_000 }).not.toBeNull();
 		// The page shows it stored (the form reloads with the record) before the tablet loses signal.
 		await expect.poll(() => p1.getByText('Recorded', { exact: true }).count(), { timeout: 15_000 }).toBe(1);
@@ -199,11 +192,7 @@ describe('installation jobs', () => {
 		expect(await engineer.page.locator('[data-field-error="note"]').textContent()).toMatch(/P2: Polarity wrong/);
 		expect((await t.db.selectFrom('installation_job').select('status').executeTakeFirstOrThrow()).status).toBe('issued');
 
-		await engineer.page
-			.getByLabel('Why close it anyway (required)')
-			.fill('P2 rewired and checked by the site electrician; record follows.');
-		await Promise.all([engineer.page.waitForURL(/\?closed=1$/), engineer.page.getByRole('button', { name: 'Close the job' }).click()]);
-		expect(await engineer.page.getByTestId('job-status').textContent()).toBe('Closed');
+		await closeJobOnPage(engineer.page, `${app.url}/jobs/${jobId}`, 'P2 rewired and checked by the site electrician; record follows.');
 		await expect.poll(status).toBe('closed');
 
 		// The job pack downloads as an attachment, on Letter too.

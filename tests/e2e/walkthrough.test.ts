@@ -134,6 +134,11 @@ describe('walkthrough: the whole job, two people at once', () => {
 		await expect
 			.poll(() => p.getByTestId('machine-todo').textContent(), { timeout: 15_000 })
 			.toContain('Everything the walk needs is recorded');
+		// The page from its top, once the new thumbnail has loaded.
+		await p.getByTestId('media-thumb').evaluate(async (img: HTMLImageElement) => {
+			if (!img.complete) await new Promise((r) => img.addEventListener('load', r, { once: true }));
+		});
+		await p.evaluate(() => window.scrollTo(0, 0));
 		await shot(engineer, '03-machine');
 	});
 
