@@ -206,6 +206,8 @@ describe('issuing jobs from the approved revision', () => {
 		// Lockout: always for drilling or tapping (PRODUCT.md installation checklist).
 		expect(motorJob.job.lockoutRequired).toBe(true);
 		expect(motorJob.plan.lockout.reasons.join(' ')).toMatch(/P1: drilling and tapping/);
+		// Issued with the box unticked: the stud alone requires lockout, nobody asked for it.
+		expect(motorJob.plan.lockout.reasons.join(' ')).not.toMatch(/Asked for by the engineer/);
 
 		const p1 = pumpJob.points.find((p) => p.label === 'P1')!;
 		const p3 = pumpJob.points.find((p) => p.label === 'P3')!;

@@ -46,6 +46,10 @@ export async function mediaForMachines(db: DB, organisationId: string, machineId
 		.where('organisation_id', '=', organisationId)
 		.where('machine_id', 'in', machineIds)
 		.where('archived_at', 'is', null)
+		// Photos of installed sensors belong to their job's record, not to the survey's boards.
+		.where(({ not, exists, selectFrom }) =>
+			not(exists(selectFrom('job_point').select('job_point.id').whereRef('job_point.photo_media_id', '=', 'media.id')))
+		)
 		.orderBy('created_at', 'desc')
 		.execute();
 	return rows.map((m) => ({

@@ -3,7 +3,7 @@
 // the job's lockout decision, tools and bill of materials, all from the trade's job planner.
 import type { DB } from '../db/index';
 import { getThresholds } from '../db/thresholds';
-import { planJob, type JobPlan, type JobPlanPointResult } from '../../trade/job-plan';
+import { lockoutRequired, planJob, type JobPlan, type JobPlanPointResult } from '../../trade/job-plan';
 import { MATERIALS, MOUNTINGS, type Material, type Mounting } from '../../trade/evaluate-point';
 import type { Finding, Severity } from '../../trade/findings';
 import type { Thresholds } from '../../trade/thresholds';
@@ -113,17 +113,18 @@ export async function loadJob(db: DB, organisationId: string, jobId: string): Pr
 		const route = routeOf.get(`${r.revision_board_id}/${r.point_id}`) ?? null;
 		return { r, route };
 	});
-	const plan = planJob(
-		planned.map(({ r, route }) => ({
-			label: r.label,
-			mounting: asMounting(r.mounting),
-			material: asMaterial(r.material),
-			cableLengthM: num(route?.length_m ?? null),
-			crossSectionMm2: num(route?.cross_section_mm2 ?? null),
-			hazardousArea: r.hazardous_area
-		})),
-		{ thresholds: t, lockoutRequested: job.lockout_required }
-	);
+	const planPoints = planned.map(({ r, route }) => ({
+		label: r.label,
+		mounting: asMounting(r.mounting),
+		material: asMaterial(r.material),
+		cableLengthM: num(route?.length_m ?? null),
+		crossSectionMm2: num(route?.cross_section_mm2 ?? null),
+		hazardousArea: r.hazardous_area
+	}));
+	// The stored flag is the decision at issue; the engineer asked for it only when the points
+	// alone would not have required it.
+	const askedFor = job.lockout_required && !lockoutRequired(planPoints).required;
+	const plan = planJob(planPoints, { thresholds: t, lockoutRequested: askedFor });
 	const points: JobPointView[] = planned.map(({ r, route }, i) => ({
 		id: r.id,
 		number: r.number,
