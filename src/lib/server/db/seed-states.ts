@@ -11,7 +11,7 @@ import type { DB } from './index';
 import * as surveys from './surveys';
 import * as boards from './boards';
 import { DEMO_SITE } from './seed-register';
-import { readDocument } from '../collab/persistence';
+import { readDocument } from './board-document';
 import { transitionSurvey } from '../review/workflow';
 import { approvedPointsOfLatestRevision } from '../jobs/repository';
 import { closeJob, issueJobs, recordPoint } from '../jobs/service';
