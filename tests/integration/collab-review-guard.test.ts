@@ -50,7 +50,9 @@ describe('review decisions on the live board', () => {
 		expect(statusOf(tech.doc, id)).toBe('proposed'); // rolled back to the server's state
 		expect(tech.readOnly).toBe(false); // other edits still go through
 
-		// Not stored, and the engineer never saw it.
+		// Not stored, and the engineer never saw it. (Peers see the proposal as soon as it is checked;
+		// its commit may land a moment later.)
+		await waitFor(async () => statusOf(await storedDoc(t.db, f.boardIds[0]), id) !== undefined, 'the proposal stored');
 		const stored = await storedDoc(t.db, f.boardIds[0]);
 		expect(statusOf(stored, id)).toBe('proposed');
 		expect(statusOf(eng.doc, id)).toBe('proposed');

@@ -29,7 +29,7 @@ let other: BoardFixture;
 
 beforeAll(async () => {
 	t = await createTestDatabase();
-	await seedDemo(t.db, [], { storage: diskStorage(mkdtempSync(join(tmpdir(), 'spotface-api-'))) });
+	await seedDemo(t.db, [], { storage: diskStorage(mkdtempSync(join(tmpdir(), 'spotface-api-'))), states: false });
 	org = (await t.db.selectFrom('organisation').select('id').where('name', '=', DEMO_ORG).executeTakeFirstOrThrow()).id;
 	surveyId = (
 		await t.db
