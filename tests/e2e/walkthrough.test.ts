@@ -111,7 +111,7 @@ describe('walkthrough: the whole job, two people at once', () => {
 		await p.getByLabel('Tag (optional)').fill('CW-P01');
 		await p.getByLabel('Kind').selectOption('pump');
 		await p.getByLabel('Area', { exact: true }).selectOption({ label: 'Clearwell pump house' });
-		await p.getByLabel('Nominal speed (rpm)').fill('1480');
+		await p.getByLabel('Nominal speed (r/min)').fill('1480');
 		await p.getByLabel('Power (kW)').fill('55');
 		await p.getByLabel('Foundation').selectOption('rigid');
 		await Promise.all([
