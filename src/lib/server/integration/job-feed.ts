@@ -6,7 +6,7 @@ import type { z } from 'zod';
 import type { DB } from '../db/index';
 import { isUuid } from '../../schemas/ids';
 import type { jobDetailSchema, jobFeedSchema, jobSummarySchema } from '../../schemas/integration';
-import { dateText, jobReference } from '../jobs/repository';
+import { dateText, jobReference, jobSummaryQuery } from '../jobs/repository';
 import { loadJob } from '../jobs/view';
 import { CursorError } from './feed';
 
@@ -19,50 +19,7 @@ function decode(cursor: string): string | null {
 }
 const iso = (d: Date | string | null) => (d == null ? null : new Date(d).toISOString());
 
-function summaryQuery(db: DB, organisationId: string) {
-	return db
-		.selectFrom('installation_job as j')
-		.innerJoin('survey', (jn) => jn.onRef('survey.id', '=', 'j.survey_id').onRef('survey.organisation_id', '=', 'j.organisation_id'))
-		.innerJoin('site', 'site.id', 'survey.site_id')
-		.innerJoin('survey_revision as rev', 'rev.id', 'j.revision_id')
-		.leftJoin('app_user as a', 'a.id', 'j.assignee_user_id')
-		.select((eb) => [
-			'j.id',
-			'j.number',
-			'j.title',
-			'j.status',
-			'j.survey_id',
-			'j.outage_start',
-			'j.outage_end',
-			'j.due_date',
-			'j.lockout_required',
-			'j.issued_at',
-			'j.closed_at',
-			'j.updated_at',
-			'survey.title as survey_title',
-			'site.name as site_name',
-			'rev.number as revision_number',
-			'a.name as assignee_name',
-			eb
-				.selectFrom('job_point as p')
-				.select((e) => e.fn.countAll<string>().as('n'))
-				.whereRef('p.job_id', '=', 'j.id')
-				.as('points'),
-			eb
-				.selectFrom('job_point as p')
-				.select((e) => e.fn.countAll<string>().as('n'))
-				.whereRef('p.job_id', '=', 'j.id')
-				.where('p.recorded_at', 'is not', null)
-				.as('recorded'),
-			eb
-				.selectFrom('job_point as p')
-				.select((e) => e.fn.countAll<string>().as('n'))
-				.whereRef('p.job_id', '=', 'j.id')
-				.where('p.worst', '=', 'fail')
-				.as('failing')
-		])
-		.where('j.organisation_id', '=', organisationId);
-}
+const summaryQuery = jobSummaryQuery;
 
 type Row = Awaited<ReturnType<ReturnType<typeof summaryQuery>['execute']>>[number];
 

@@ -28,9 +28,9 @@ export interface JobListFilter {
 	status?: JobStatus;
 }
 
-/** Jobs with their survey, site, assignee and how many points are recorded or failing. */
-export function listJobs(db: Q, organisationId: string, filter: JobListFilter = {}) {
-	let q = db
+/** Jobs of the organisation with their survey, site, assignee and how many points are recorded or failing. */
+export function jobSummaryQuery(db: Q, organisationId: string) {
+	return db
 		.selectFrom('installation_job as j')
 		.innerJoin('survey', (jn) => jn.onRef('survey.id', '=', 'j.survey_id').onRef('survey.organisation_id', '=', 'j.organisation_id'))
 		.innerJoin('site', 'site.id', 'survey.site_id')
@@ -50,6 +50,7 @@ export function listJobs(db: Q, organisationId: string, filter: JobListFilter = 
 			'j.issued_at',
 			'j.closed_at',
 			'j.close_note',
+			'j.updated_at',
 			'survey.title as survey_title',
 			'site.name as site_name',
 			'rev.number as revision_number',
@@ -74,6 +75,11 @@ export function listJobs(db: Q, organisationId: string, filter: JobListFilter = 
 				.as('failing')
 		])
 		.where('j.organisation_id', '=', organisationId);
+}
+
+/** Jobs with their survey, site, assignee and how many points are recorded or failing. */
+export function listJobs(db: Q, organisationId: string, filter: JobListFilter = {}) {
+	let q = jobSummaryQuery(db, organisationId);
 	if (filter.surveyId) q = q.where('j.survey_id', '=', filter.surveyId);
 	if (filter.assigneeUserId) q = q.where('j.assignee_user_id', '=', filter.assigneeUserId);
 	if (filter.status) q = q.where('j.status', '=', filter.status);
