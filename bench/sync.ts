@@ -15,7 +15,7 @@
 //
 // Runs on a private PostgreSQL cluster (.data/pg-sync, port SPOTFACE_BENCH_PG_PORT or 54369, a
 // fresh database each run, stopped at the end). Hold the build lock, as the tests do:
-//   flock /tmp/build.lock npm run bench:sync -- [--seconds 20] [--warmup 3] [--rates 0.5,2,8] [--boards 20] [--clients 6] [--cold 10000] [--only reference|spotface]
+//   flock /tmp/build.lock npm run bench:sync -- [--seconds 20] [--warmup 3] [--rates 0.5,2,8] [--boards 20] [--clients 6] [--cold 10000] [--only reference|spotface] [--profile dir]
 import { readFileSync, readdirSync } from 'node:fs';
 import { spawn, type ChildProcess } from 'node:child_process';
 import { parseArgs } from 'node:util';
@@ -41,7 +41,9 @@ const { values: args } = parseArgs({
 		boards: { type: 'string', default: '20' },
 		clients: { type: 'string', default: '6' },
 		cold: { type: 'string', default: '10000' },
-		only: { type: 'string' }
+		only: { type: 'string' },
+		// Writes a CPU profile of the Spotface server to this folder (node --cpu-prof).
+		profile: { type: 'string' }
 	}
 });
 const SECONDS = Number(args.seconds);
@@ -357,7 +359,11 @@ async function main() {
 
 		// ---- Spotface -------------------------------------------------------------------------
 		if (args.only !== 'reference') {
-			app = await startApp({ databaseUrl: url, env: { COLLAB_UNLOAD_GRACE_MS: '2000' } });
+			app = await startApp({
+				databaseUrl: url,
+				env: { COLLAB_UNLOAD_GRACE_MS: '2000' },
+				nodeArgs: args.profile ? ['--cpu-prof', `--cpu-prof-dir=${args.profile}`] : []
+			});
 			const writers = [f.people.admin, f.people.engineer, f.people.technician, ...f.technicians].slice(0, CLIENTS);
 			while (writers.length < CLIENTS) writers.push(writers[writers.length % 3]);
 			const cookies = await Promise.all(writers.map((w) => sessionCookie(app!.url, w)));
