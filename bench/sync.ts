@@ -318,7 +318,7 @@ async function main() {
 	);
 	const bench = await openBenchDatabase({ dir: '.data/pg-sync', defaultPort: 54369, name: 'spotface_sync', poolSize: 4 });
 	const { url, handle: t } = bench;
-	const results: Record<string, Awaited<ReturnType<typeof runServer>> & { cold: string }> = {};
+	const results: Record<string, Awaited<ReturnType<typeof runServer>> & { cold: string; commits?: string }> = {};
 	let app: RunningApp | null = null;
 	let ref: ChildProcess | null = null;
 	try {
@@ -389,6 +389,18 @@ async function main() {
 					}
 				}
 			);
+			// How the writer grouped the updates: the server prints its counters on SIGUSR2.
+			process.kill(app.process.pid!, 'SIGUSR2');
+			await sleep(300);
+			const statsLine = app
+				.output()
+				.split('\n')
+				.filter((l) => l.includes('[collab] stats'))
+				.pop();
+			const batches = /batches=(\d+) rows=(\d+) largestBatch=(\d+)/.exec(statsLine ?? '');
+			const commits = batches
+				? `${batches[1]} commits for ${batches[2]} updates (${(Number(batches[2]) / Math.max(1, Number(batches[1]))).toFixed(1)} per commit, largest ${batches[3]})`
+				: 'not reported';
 			// Cold load: COLD updates in the log of a board nobody has open, compacted into its
 			// snapshot, then a fresh client joins (the process loads the snapshot and syncs it).
 			const coldBoard = f.boardIds[BOARDS];
@@ -416,6 +428,7 @@ async function main() {
 			)?.[1];
 			results.spotface = {
 				...res,
+				commits,
 				cold: `${coldMs.toFixed(0)} ms from join to synced (snapshot of ${compacted?.merged ?? 0} updates, ${((compacted?.snapshotBytes ?? 0) / 1024).toFixed(0)} KB; the server read and loaded it in ${serverSaid ?? '?'} ms)`
 			};
 		}
@@ -443,6 +456,7 @@ async function main() {
 				`  peer p99 passes 50 ms at: ${over ? `${over.rate} edits/s per client` : `not within the steps (up to ${Math.max(...RATES)} edits/s per client)`}`
 			);
 			console.log(`  cold load of a compacted ${COLD}-update board: ${r.cold}`);
+			if (r.commits) console.log(`  writer, whole run: ${r.commits}`);
 		}
 		const theirs = results.reference;
 		const ours = results.spotface;

@@ -16,6 +16,7 @@ import { collabOptionsFromEnv, type CollabOptions } from './collab/config';
 import { guardPool, isConnectionError } from './db-health';
 import { ADAPTER_POOL_NAME, COLLAB_POOL_NAME } from './db/index';
 import { adapterPool as guardedAdapterPool } from './collab/adapter-pool';
+import { coalesceWebSocketWrites } from './collab/ws-writes';
 import { viewerFromSession } from './auth/viewer';
 import type { Viewer } from './auth/lucia';
 import type { HandshakeErrorData } from '../board/sync/protocol';
@@ -56,6 +57,8 @@ export function attachRealtime(httpServer: HttpServer, opts: RealtimeOptions = {
 			callback(null, !origin || origin === config.origin);
 		}
 	});
+	// One write to the network per connection and tick, not one per WebSocket frame (ws-writes.ts).
+	coalesceWebSocketWrites(io);
 	// The writer (group commit, at most a few connections at a time) and one LISTEN connection.
 	const collabPool = guardPool(
 		new pg.Pool({ connectionString: config.databaseUrl, max: 4, application_name: COLLAB_POOL_NAME }),

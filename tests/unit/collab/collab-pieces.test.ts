@@ -232,6 +232,47 @@ describe('UpdateWriter when the database stays away', () => {
 	});
 });
 
+describe('UpdateWriter commit pacing', () => {
+	const item = (n: number, boardId = 'b'): PendingUpdate => ({
+		boardId,
+		organisationId: 'o',
+		userId: 'u',
+		sessionId: 's',
+		update: new Uint8Array([n])
+	});
+	it('starts a commit at once on a quiet board, and under load puts what arrives within the interval in one commit', async () => {
+		const batches: number[][] = [];
+		const starts: number[] = [];
+		const writer = new UpdateWriter(
+			{ query: async () => ({}) as never },
+			500,
+			async (_db, items) => {
+				starts.push(performance.now());
+				batches.push(items.map((i) => i.update[0]));
+				return items.map((i) => `seq${i.update[0]}`);
+			},
+			undefined,
+			() => {},
+			{ minGapMs: 60 }
+		);
+		const t0 = performance.now();
+		await writer.enqueue(item(1));
+		// Nothing waited for the first one.
+		expect(starts[0] - t0).toBeLessThan(30);
+		// Four more right after it, from two boards: one commit, no earlier than the interval.
+		const rest = [writer.enqueue(item(2)), writer.enqueue(item(3, 'c')), writer.enqueue(item(4)), writer.enqueue(item(5, 'c'))];
+		await expect(Promise.all(rest)).resolves.toEqual(['seq2', 'seq3', 'seq4', 'seq5']);
+		expect(batches).toEqual([[1], [2, 4, 3, 5]]);
+		expect(starts[1] - starts[0]).toBeGreaterThanOrEqual(59);
+		// Long after the last commit began, a new update is written at once again.
+		await new Promise((r) => setTimeout(r, 80));
+		const t1 = performance.now();
+		await writer.enqueue(item(6));
+		expect(starts[2] - t1).toBeLessThan(30);
+		await writer.close();
+	});
+});
+
 describe('ByteBucket', () => {
 	it('lets a message through while not in debt, then waits until the debt is paid off', () => {
 		let t = 0;

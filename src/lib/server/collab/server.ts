@@ -61,7 +61,7 @@ export function attachCollab({ io, db, pool, options, log = console }: CollabDep
 		options,
 		log,
 		rooms: new Map<string, BoardRoom>(),
-		writer: new UpdateWriter(pool),
+		writer: new UpdateWriter(pool, undefined, undefined, undefined, undefined, { minGapMs: options.commitIntervalMs }),
 		cluster: new ClusterView(io, options.cluster),
 		closed: false
 	};

@@ -6,6 +6,11 @@
 // (e.g. waiting for an approval's row lock) holds one connection, not everyone. A board has at
 // most one batch in flight: its updates are stored, and answered, in the order they came.
 //
+// Batches start at most every `minGapMs` (collab option commitIntervalMs): under load the updates
+// that arrive in between share the next commit, and each commit's cost (a round trip, a WAL
+// flush) is spread over more of them; when the last batch began long enough ago, a new one
+// starts at once, so a quiet board waits for nothing.
+//
 // When a batch fails, each of its boards is tried again alone after a back-off (100 ms, doubling
 // to `maxDelayMs`), so one board's failing write does not stall the others. After `attempts`
 // failed tries the waiting senders are answered with StorageUnavailable ("not stored, try again
@@ -72,8 +77,16 @@ export class UpdateWriter {
 		private readonly store: (db: Queryable, items: PendingUpdate[]) => Promise<(string | null)[]> = appendUpdates,
 		private readonly retry: WriterRetry = DEFAULT_WRITER_RETRY,
 		private readonly report: typeof reportHealth = reportHealth,
-		private readonly maxInFlight = 2
-	) {}
+		{ maxInFlight = 2, minGapMs = 0 }: { maxInFlight?: number; minGapMs?: number } = {}
+	) {
+		this.maxInFlight = maxInFlight;
+		this.minGapMs = minGapMs;
+	}
+
+	private readonly maxInFlight: number;
+	private readonly minGapMs: number;
+
+	#lastStart = -Infinity;
 
 	/** True while some board's updates could not be stored after all tries. */
 	get down() {
@@ -195,6 +208,12 @@ export class UpdateWriter {
 				if (b.failures > 0 || rows >= this.maxBatch) break;
 			}
 			if (batch.length === 0) break;
+			if (now - this.#lastStart < this.minGapMs && !this.#closed) {
+				// Too soon after the last commit began: what is waiting goes in the next one.
+				nextRetry = Math.min(nextRetry, this.#lastStart + this.minGapMs);
+				break;
+			}
+			this.#lastStart = now;
 			for (const part of batch) part.board.inFlight = true;
 			this.#inFlight++;
 			void this.#write(batch);
