@@ -606,6 +606,16 @@ function judge(
 	const a = maps(after);
 	for (const kind of ['point', 'route', 'zone'] as const) {
 		const { key, code, plural } = LIMIT_KEY[kind];
+		// Counting a map walks all its entries: only when the change added an item of this kind.
+		const beforeMap = b[ROOT_OF[kind]];
+		let added = false;
+		for (const id of changes.items[kind]) {
+			if (!beforeMap.has(id)) {
+				added = true;
+				break;
+			}
+		}
+		if (!added) continue;
 		const n = a[ROOT_OF[kind]].size;
 		if (n > limits[key] && n > b[ROOT_OF[kind]].size) {
 			out.push({

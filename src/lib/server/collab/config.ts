@@ -52,7 +52,7 @@ export const DEFAULT_COLLAB_OPTIONS: CollabOptions = {
 	compactEvery: 200,
 	catchUpMs: 10_000,
 	sessionCheckMs: 30_000,
-	commitIntervalMs: 10,
+	commitIntervalMs: 20,
 	cluster: true,
 	// A real board (1,000 points with notes, routes and zones) encodes to a few hundred KB, and
 	// a technician's edits come to a few KB per second at most (a point dragged at 60 frames a

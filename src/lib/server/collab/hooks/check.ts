@@ -5,7 +5,7 @@
 // the store's own check refuses them with the reason.
 import * as Y from 'yjs';
 import { Malformed } from '../../../board/sync/frames';
-import { checkBoardChange, cloneDoc } from '../../../board/model/policy';
+import { checkBoardChange, cloneDoc, resolveLimits, type BoardLimits } from '../../../board/model/policy';
 import { refusalMessage } from '../../../board/sync/policy-check';
 import type { MessageAck } from '../../../board/sync/protocol';
 import type { CollabContext } from '../context';
@@ -81,6 +81,17 @@ export async function checkRights(
 	return (await checkClientIds(ctx, room, member, decoded)) ?? { shadowGen };
 }
 
+const limitsByOptions = new WeakMap<CollabContext['options'], BoardLimits>();
+/** The policy's limits from the collab options, worked out once per set of options. */
+function boardLimitsOf(options: CollabContext['options']): BoardLimits {
+	let limits = limitsByOptions.get(options);
+	if (!limits) {
+		limits = resolveLimits({ ...options.boardLimits, maxUpdateBytes: options.maxUpdateBytes, maxDocumentBytes: options.maxDocumentBytes });
+		limitsByOptions.set(options, limits);
+	}
+	return limits;
+}
+
 /**
  * The board policy on the room's shadow copy: null when the update may be stored, else the
  * reasons in words for the person.
@@ -89,14 +100,13 @@ function checkPolicy(ctx: CollabContext, room: BoardRoom, member: RoomMember, up
 	if (!room.shadow) room.shadow = cloneDoc(room.doc);
 	else if (room.shadowBehind) catchUpShadow(room.shadow, room.doc);
 	room.shadowBehind = false;
-	const { options } = ctx;
 	const r = checkBoardChange(
 		room.doc,
 		update,
 		{ role: member.viewer.role, userId: member.viewer.userId, name: member.viewer.name },
 		{
 			frozen: false, // read-only members and frozen boards are refused by the store's own check
-			limits: { ...options.boardLimits, maxUpdateBytes: options.maxUpdateBytes, maxDocumentBytes: options.maxDocumentBytes },
+			limits: boardLimitsOf(ctx.options),
 			documentBytes: room.size.bound
 		},
 		{ shadow: room.shadow }
