@@ -4,7 +4,7 @@ import { describe, expect, it } from 'vitest';
 import * as Y from 'yjs';
 import { TokenBucket } from '../../../src/lib/server/collab/rate-limit';
 import { collabOptionsFromEnv, DEFAULT_COLLAB_OPTIONS } from '../../../src/lib/server/collab/config';
-import { decodeUpdateStrict, isCoveredBy, isEmptyUpdate } from '../../../src/lib/server/collab/update-check';
+import { buildsOnMissing, decodeUpdateStrict, isCoveredBy, isEmptyUpdate } from '../../../src/lib/server/collab/update-check';
 import { StorageUnavailable, UpdateWriter } from '../../../src/lib/server/collab/writer';
 import { ByteBucket, DocumentSize, spend } from '../../../src/lib/server/collab/budget';
 import type { PendingUpdate } from '../../../src/lib/server/collab/persistence';
@@ -344,5 +344,25 @@ describe('collab byte limits from the environment', () => {
 		});
 		expect([o.maxUpdateBytes, o.boardByteBurst, o.socketBytesPerSecond]).toEqual([2048, 4096, 8192]);
 		expect(() => collabOptionsFromEnv({ COLLAB_MAX_DOCUMENT_BYTES: '12' })).toThrow(/COLLAB_MAX_DOCUMENT_BYTES/);
+	});
+});
+
+describe('buildsOnMissing', () => {
+	it('tells an update that continues from changes the document lacks from one it can apply', () => {
+		const author = new Y.Doc();
+		const updates: Uint8Array[] = [];
+		author.on('update', (u: Uint8Array) => updates.push(u));
+		for (let i = 0; i < 3; i++) author.getMap('points').set(`p${i}`, `v${i}`);
+		const server = new Y.Doc();
+		// The first applies; the second builds on the first, which the server does not have yet.
+		expect(buildsOnMissing(server, decodeUpdateStrict(updates[0]))).toBe(false);
+		expect(buildsOnMissing(server, decodeUpdateStrict(updates[1]))).toBe(true);
+		// Several of one client's changes in one update, in order: applicable as a whole.
+		expect(buildsOnMissing(server, decodeUpdateStrict(Y.mergeUpdates(updates)))).toBe(false);
+		Y.applyUpdate(server, updates[0]);
+		expect(buildsOnMissing(server, decodeUpdateStrict(updates[1]))).toBe(false);
+		expect(buildsOnMissing(server, decodeUpdateStrict(updates[2]))).toBe(true);
+		// The last two merged, with the first missing still: a gap.
+		expect(buildsOnMissing(new Y.Doc(), decodeUpdateStrict(Y.mergeUpdates([updates[1], updates[2]])))).toBe(true);
 	});
 });

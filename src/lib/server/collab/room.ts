@@ -35,6 +35,12 @@ export interface RoomMember {
 	 * the writer in the order sent, so acknowledgements come in that order (hooks/receive.ts).
 	 */
 	inFlight: Promise<void>;
+	/**
+	 * Some of the member's updates were answered "not now" and not sent again yet: a later one
+	 * that builds on them is answered "not now" too (not refused), so nothing is taken out of
+	 * order while the client holds the earlier ones (hooks/check.ts).
+	 */
+	heldBack: boolean;
 }
 
 export class BoardRoom {

@@ -18,6 +18,23 @@ export function isEmptyUpdate(d: DecodedUpdate): boolean {
  */
 export { isCoveredBy } from '../../board/model/policy';
 
+/**
+ * True when the update continues a client's changes from a point the document has not reached
+ * (it builds on an update the document lacks): Yjs would keep it pending, not apply it.
+ */
+export function buildsOnMissing(doc: Y.Doc, d: DecodedUpdate): boolean {
+	// How far each client's changes reach: the document's state, then each struct of the update.
+	const reach = new Map<number, number>();
+	for (const s of d.structs) {
+		if (s instanceof Y.Skip) continue;
+		const client = s.id.client;
+		const known = Math.max(reach.get(client) ?? 0, Y.getState(doc.store, client));
+		if (s.id.clock > known) return true;
+		reach.set(client, Math.max(known, s.id.clock + s.length));
+	}
+	return false;
+}
+
 /** Brings a shadow copy up to date with the room's document (only what it lacks). */
 export function catchUpShadow(shadow: Y.Doc, doc: Y.Doc): void {
 	Y.applyUpdate(shadow, Y.encodeStateAsUpdate(doc, Y.encodeStateVector(shadow)));

@@ -49,7 +49,8 @@ export async function join(ctx: CollabContext, socket: Socket, bytes: ByteBucket
 			clientIds: new Set(),
 			bytes,
 			syncRequests: new TokenBucket(SYNC_REQUESTS_PER_SECOND, SYNC_REQUEST_BURST),
-			inFlight: Promise.resolve()
+			inFlight: Promise.resolve(),
+			heldBack: false
 		};
 		room.members.set(socket.id, member);
 		socket.join(roomOf(boardId));

@@ -12,9 +12,13 @@ import type { CollabContext } from '../context';
 import { who } from '../context';
 import type { BoardRoom, RoomMember } from '../room';
 import { kib, spend } from '../budget';
-import { catchUpShadow, decodeUpdateStrict, isCoveredBy, isEmptyUpdate, type DecodedUpdate } from '../update-check';
+import { holdReading } from '../hold-reading';
+import { buildsOnMissing, catchUpShadow, decodeUpdateStrict, isCoveredBy, isEmptyUpdate, type DecodedUpdate } from '../update-check';
 import { ensureOwnership, structClientIds } from '../client-ids';
 import { overBudget, refused } from './acknowledge';
+
+/** The wait suggested for an update that builds on one answered "not now". */
+const HELD_BACK_RETRY_MS = 250;
 
 /**
  * The checks that need nothing but the message and the room, run at once; a Malformed throw
@@ -36,7 +40,12 @@ export function checkUpdate(
 		};
 	}
 	const budget = spend(member.bytes, room.bytes, size);
-	if (!budget.ok) return { ok: false, ack: overBudget(ctx, room, member, budget.who, budget.retryAfterMs) };
+	if (!budget.ok) {
+		// Not read again until the wait is over: a sender that does not wait is held at the network.
+		holdReading(member.socket, budget.retryAfterMs);
+		member.heldBack = true;
+		return { ok: false, ack: overBudget(ctx, room, member, budget.who, budget.retryAfterMs) };
+	}
 	let decoded: DecodedUpdate;
 	try {
 		decoded = decodeUpdateStrict(update);
@@ -47,6 +56,14 @@ export function checkUpdate(
 	// that the room already shows): nothing to store, but the answer "stored" waits for what the
 	// room holds to be stored (receive.ts).
 	if (isEmptyUpdate(decoded) || isCoveredBy(room.doc, decoded)) return { ok: false, covered: true };
+	if (member.heldBack) {
+		// Sent before the client heard "not now" for an earlier one it builds on: that one comes
+		// again first (the client keeps both, in order), so this one waits too.
+		if (buildsOnMissing(room.doc, decoded)) {
+			return { ok: false, ack: overBudget(ctx, room, member, 'connection', Math.max(HELD_BACK_RETRY_MS, member.bytes.waitMs())) };
+		}
+		member.heldBack = false;
+	}
 	if (member.readOnly) return { ok: true, decoded };
 	if (!room.size.fits(room.doc, size, options.maxDocumentBytes)) {
 		log.warn(`[collab] refused an update from ${who(member.socket)}: the board would pass ${options.maxDocumentBytes} bytes`);
