@@ -17,7 +17,8 @@
 // --profile writes a CPU profile of one pan-and-zoom round (open it in Chromium's DevTools) and
 // prints the functions with the most self time; --trace writes a Chromium performance trace of it;
 // --profile-open profiles opening the board a second time; --trace-open writes a Chromium
-// performance trace of the first (cold) opening: network, script compiling and running, drawing;
+// performance trace of the first (cold) opening and, beside it (name.warm.json), of the second
+// (warm): network, script compiling and running, drawing;
 // --profile-cold writes a CPU profile of that opening.
 import { writeFileSync } from 'node:fs';
 import { cpus, freemem, loadavg, totalmem } from 'node:os';
@@ -414,7 +415,13 @@ async function main() {
 				await openCdp.send('Profiler.setSamplingInterval', { interval: 200 });
 				await openCdp.send('Profiler.start');
 			}
+			const warmTrace = traceOpen ? args['trace-open']!.replace(/(\.json)?$/, '.warm.json') : null;
+			if (warmTrace) await browser.startTracing(page, { path: warmTrace, screenshots: false });
 			const warm = await openBoard(page, boardUrl);
+			if (warmTrace) {
+				await browser.stopTracing();
+				console.log(`trace of opening the board (warm) written to ${warmTrace}`);
+			}
 			if (openCdp) {
 				const { profile } = (await openCdp.send('Profiler.stop')) as { profile: Parameters<typeof topFunctions>[0] };
 				writeFileSync(args['profile-open']!, JSON.stringify(profile));
