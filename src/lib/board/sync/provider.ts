@@ -281,6 +281,21 @@ export class BoardProvider {
 		return applied.length;
 	}
 
+	/**
+	 * Whether this browser holds an offline copy of a board, without opening it (ask before
+	 * creating the board's provider: opening the copy creates it). False where that cannot be
+	 * told quickly (no `indexedDB.databases()`).
+	 */
+	static async hasOfflineCopy(boardId: string): Promise<boolean> {
+		if (typeof indexedDB === 'undefined' || typeof indexedDB.databases !== 'function') return false;
+		try {
+			const name = offlineName(boardId, offlineGeneration(boardId));
+			return (await indexedDB.databases()).some((d) => d.name === name);
+		} catch {
+			return false;
+		}
+	}
+
 	/** Resolves when the offline copy (if any) has been loaded into the document. */
 	whenLocalLoaded(): Promise<void> {
 		return this.#offlineReady;
