@@ -15,7 +15,8 @@ export const GET: RequestHandler = async ({ locals, params }) => {
 	const stored = await readStored(context().handle.db, params.boardId, { organisationId: viewer.organisationId, surveyId: params.id });
 	if (!stored) return problem(404, 'No such board in your organisation.');
 	const updates = [...(stored.snapshot ? [stored.snapshot] : []), ...stored.rows.map((r) => r.update)];
-	return new Response(encodeStoredState(updates), {
+	// lib0 encodes into a fresh ArrayBuffer.
+	return new Response(encodeStoredState(updates) as Uint8Array<ArrayBuffer>, {
 		headers: {
 			'content-type': STORED_STATE_TYPE,
 			// Private and always current: the live sync corrects it, but nothing keeps a copy.
