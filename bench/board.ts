@@ -12,10 +12,14 @@
 //
 //   npx tsx bench/board.ts [--points 1000] [--routes 50] [--zones 8] [--width 1280] [--height 800]
 //                          [--rounds 2] [--profile out.cpuprofile] [--profile-open out.cpuprofile] [--trace out.json]
+//                          [--trace-open out.json] [--profile-cold out.cpuprofile]
 //
 // --profile writes a CPU profile of one pan-and-zoom round (open it in Chromium's DevTools) and
 // prints the functions with the most self time; --trace writes a Chromium performance trace of it;
-// --profile-open profiles opening the board a second time.
+// --profile-open profiles opening the board a second time; --trace-open writes a Chromium
+// performance trace of the first (cold) opening and, beside it (name.warm.json), of the second
+// (warm): network, script compiling and running, drawing;
+// --profile-cold writes a CPU profile of that opening.
 import { writeFileSync } from 'node:fs';
 import { cpus, freemem, loadavg, totalmem } from 'node:os';
 import { parseArgs } from 'node:util';
@@ -39,6 +43,8 @@ const { values: args } = parseArgs({
 		rounds: { type: 'string', default: '2' },
 		profile: { type: 'string' },
 		'profile-open': { type: 'string' },
+		'trace-open': { type: 'string' },
+		'profile-cold': { type: 'string' },
 		trace: { type: 'string' }
 	}
 });
@@ -383,7 +389,25 @@ async function main() {
 			const errors: string[] = [];
 			page.on('pageerror', (e) => errors.push(e.message));
 			await signIn(page, app.url);
+			const traceOpen = args['trace-open'] && r === 0;
+			if (traceOpen) await browser.startTracing(page, { path: args['trace-open'], screenshots: false });
+			const coldCdp = args['profile-cold'] && r === 0 ? await context.newCDPSession(page) : null;
+			if (coldCdp) {
+				await coldCdp.send('Profiler.enable');
+				await coldCdp.send('Profiler.setSamplingInterval', { interval: 200 });
+				await coldCdp.send('Profiler.start');
+			}
 			const cold = await openBoard(page, boardUrl);
+			if (coldCdp) {
+				const { profile } = (await coldCdp.send('Profiler.stop')) as { profile: Parameters<typeof topFunctions>[0] };
+				writeFileSync(args['profile-cold']!, JSON.stringify(profile));
+				console.log(`CPU profile of opening the board (cold) written to ${args['profile-cold']}; most self time:`);
+				for (const [name, t] of topFunctions(profile)) console.log(`  ${(t / 1000).toFixed(1).padStart(8)} ms  ${name}`);
+			}
+			if (traceOpen) {
+				await browser.stopTracing();
+				console.log(`trace of opening the board (cold) written to ${args['trace-open']}`);
+			}
 			opens.push({ kind: 'cold', ms: cold.firstPointMs, points: cold.points, steps: cold.steps });
 			const openCdp = args['profile-open'] && r === 0 ? await context.newCDPSession(page) : null;
 			if (openCdp) {
@@ -391,7 +415,13 @@ async function main() {
 				await openCdp.send('Profiler.setSamplingInterval', { interval: 200 });
 				await openCdp.send('Profiler.start');
 			}
+			const warmTrace = traceOpen ? args['trace-open']!.replace(/(\.json)?$/, '.warm.json') : null;
+			if (warmTrace) await browser.startTracing(page, { path: warmTrace, screenshots: false });
 			const warm = await openBoard(page, boardUrl);
+			if (warmTrace) {
+				await browser.stopTracing();
+				console.log(`trace of opening the board (warm) written to ${warmTrace}`);
+			}
 			if (openCdp) {
 				const { profile } = (await openCdp.send('Profiler.stop')) as { profile: Parameters<typeof topFunctions>[0] };
 				writeFileSync(args['profile-open']!, JSON.stringify(profile));

@@ -91,6 +91,8 @@ describe('refused and overwritten work on the live board', () => {
 		await tech.page.getByRole('button', { name: 'Propose as a new point' }).click();
 		await expect.poll(() => engineer.page.getByTestId('board-canvas').getAttribute('data-points'), { timeout: 10_000 }).toBe('3');
 		await expect.poll(() => tech.page.getByTestId('not-accepted-entry').count()).toBe(0);
+		// The engineer's board shows a change before it is stored: wait for the store.
+		await expect.poll(async () => (await pointsOnServer()).P3?.status, { timeout: 10_000 }).toBe('proposed');
 		const points = await pointsOnServer();
 		expect(points.P3).toMatchObject({ status: 'proposed', flatDiameterMm: 10, createdBy: 'Teo Technician' });
 		expect(points.P1).toMatchObject({ status: 'approved', flatDiameterMm: null });

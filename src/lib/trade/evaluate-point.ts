@@ -560,12 +560,20 @@ export function routeFindings(route: ReturnType<typeof readRoute>, t: Thresholds
 /**
  * Resolves threshold overrides. Bad overrides become 'fail' findings and the defaults are
  * used for the rest of the evaluation, so the result is never better than "fail".
+ *
+ * A board evaluates every point with the same overrides object, so the resolution is kept per
+ * object (checking the overrides is a schema parse): the thresholds come back frozen and the
+ * findings as fresh copies. Overrides are read, never changed, by the rule engine; a caller that
+ * changes an overrides object after evaluating with it must pass a new object.
  */
-export function thresholdsForEvaluation(overrides: unknown): { t: Thresholds; findings: Finding[] } {
+const resolved = new WeakMap<object, { t: Thresholds; findings: Finding[] }>();
+let resolvedDefault: { t: Thresholds; findings: Finding[] } | null = null;
+
+function resolveForEvaluation(overrides: unknown): { t: Thresholds; findings: Finding[] } {
 	const r = safeResolveThresholds(overrides ?? {});
-	if (r.ok) return { t: r.thresholds, findings: [] };
+	if (r.ok) return { t: Object.freeze(r.thresholds), findings: [] };
 	return {
-		t: { ...DEFAULT_THRESHOLDS },
+		t: Object.freeze({ ...DEFAULT_THRESHOLDS }),
 		findings: r.issues.map((i) => ({
 			rule: 'input.invalid',
 			severity: 'fail' as const,
@@ -573,6 +581,17 @@ export function thresholdsForEvaluation(overrides: unknown): { t: Thresholds; fi
 			reference: RULES_BY_ID['input.invalid'].reference
 		}))
 	};
+}
+
+export function thresholdsForEvaluation(overrides: unknown): { t: Thresholds; findings: Finding[] } {
+	let hit: { t: Thresholds; findings: Finding[] };
+	if (overrides === undefined || overrides === null) hit = resolvedDefault ??= resolveForEvaluation(undefined);
+	else if (typeof overrides === 'object') {
+		const known = resolved.get(overrides);
+		hit = known ?? resolveForEvaluation(overrides);
+		if (!known) resolved.set(overrides, hit);
+	} else hit = resolveForEvaluation(overrides);
+	return { t: hit.t, findings: hit.findings.map((f) => ({ ...f })) };
 }
 
 /**

@@ -13,6 +13,7 @@ import {
 	movePoint,
 	nextPointLabel,
 	readBoard,
+	readPoint,
 	setRouteVertices,
 	setScale,
 	setZonePolygon,
@@ -270,5 +271,21 @@ describe('review decisions', () => {
 		const other = addPoint(doc, { x: 2, y: 2 });
 		statusCommit(doc, other, { userId: 'u-tam', name: 'Tam' })('proposed');
 		expect(maps(doc).points.get(other)!.has('decidedBy')).toBe(false);
+	});
+});
+
+describe('reading fields: a value parsed once per schema gives what parsing it gives', () => {
+	test('the same values on many points read alike, trimmed and checked each time', () => {
+		const doc = new Y.Doc();
+		const ids = [1, 2, 3].map((i) => addPoint(doc, { x: i, y: i, label: `P${i}`, component: 'motor DE' }));
+		const m = maps(doc).points;
+		m.get(ids[0])!.set('component', '  motor DE  ');
+		m.get(ids[1])!.set('component', '  motor DE  ');
+		m.get(ids[2])!.set('flatDiameterMm', -0);
+		m.get(ids[1])!.set('flatDiameterMm', 'forty');
+		const read = ids.map((id) => readPoint(id, m.get(id)!)!);
+		expect(read.map((p) => p.component)).toEqual(['motor DE', 'motor DE', 'motor DE']);
+		expect(read[1].flatDiameterMm).toBeNull();
+		expect(Object.is(read[2].flatDiameterMm, -0)).toBe(true);
 	});
 });

@@ -334,4 +334,15 @@ describe('threshold overrides', () => {
 		expect(bad[0].message).toMatch(/minFlatDiameterMm/);
 		expect(only(findings, 'seat.flat-diameter')).toMatchObject({ severity: 'fail', limit: 30 });
 	});
+	test('one overrides object used for many points gives each the same findings as a fresh copy would', () => {
+		const shared = { minFlatDiameterMm: 20 } as Partial<Thresholds>;
+		for (const flat of [25, 15, 25]) {
+			expect(run({ point: { flatDiameterMm: flat } }, shared)).toEqual(run({ point: { flatDiameterMm: flat } }, { ...shared }));
+		}
+		const bad = { minFlatDiameterMm: -5 } as Partial<Thresholds>;
+		const first = run({}, bad).filter((f) => f.rule === 'input.invalid');
+		first[0].message = 'changed by the caller';
+		// A finding handed out is the caller's: the next point gets its own, unchanged.
+		expect(run({}, bad).filter((f) => f.rule === 'input.invalid')[0].message).toMatch(/minFlatDiameterMm/);
+	});
 });

@@ -95,16 +95,41 @@ export function maps(doc: Y.Doc) {
 	};
 }
 
+type FieldSchema = { safeParse(v: unknown): { success: boolean; data?: unknown } };
+type FieldResult = { success: boolean; data?: unknown };
+
+/**
+ * Results of field schemas for plain values (strings, numbers, booleans, null), which repeat a
+ * lot across a board (the same choices, components, sizes): parsing such a value is pure, so a
+ * value's result is worked out once per schema. Kept small: each schema's table is emptied when
+ * it grows past a few thousand values.
+ */
+const parsedValues = new WeakMap<FieldSchema, Map<unknown, FieldResult>>();
+const MAX_PARSED_VALUES = 4096;
+
+function parseField(schema: FieldSchema, value: unknown): FieldResult {
+	const t = typeof value;
+	// Objects are parsed every time, and so is -0 (a table keeps 0 and -0 as one key).
+	if ((value !== null && t !== 'string' && t !== 'number' && t !== 'boolean') || Object.is(value, -0)) return schema.safeParse(value);
+	let table = parsedValues.get(schema);
+	if (!table) parsedValues.set(schema, (table = new Map()));
+	let r = table.get(value);
+	if (!r) {
+		const parsed = schema.safeParse(value);
+		r = parsed.success ? { success: true, data: parsed.data } : { success: false };
+		if (table.size >= MAX_PARSED_VALUES) table.clear();
+		table.set(value, r);
+	}
+	return r;
+}
+
 /** Reads the fields of one item; a field that fails its schema falls back to its default. */
-function readFields<T extends Record<string, unknown>>(
-	m: Y.Map<unknown>,
-	shape: Record<string, { safeParse(v: unknown): { success: boolean; data?: unknown } }>,
-	defaults: T
-): T {
+function readFields<T extends Record<string, unknown>>(m: Y.Map<unknown>, shape: Record<string, FieldSchema>, defaults: T): T {
 	const out: Record<string, unknown> = { ...defaults };
 	for (const key of Object.keys(shape)) {
-		if (!m.has(key)) continue;
-		const r = shape[key].safeParse(m.get(key));
+		const value = m.get(key);
+		if (value === undefined && !m.has(key)) continue;
+		const r = parseField(shape[key], value);
 		if (r.success) out[key] = r.data;
 	}
 	return out as T;

@@ -102,6 +102,8 @@ type Listener = (...a: any[]) => void;
 
 const isBrowser = typeof window !== 'undefined' && typeof document !== 'undefined';
 const OFFLINE_PREFIX = 'spotface-board-';
+/** How long after the server's (or the offline copy's) changes the policy's copy takes them in. */
+const ACCEPTED_CATCH_UP_MS = 1500;
 const GENERATION_PREFIX = 'spotface-board-generation-';
 
 /** Which offline copy of a board is current: each refusal starts a new one and keeps the old. */
@@ -177,6 +179,14 @@ export class BoardProvider {
 	 * sent; the board goes back to this state and the change goes to the tray.
 	 */
 	#accepted: Y.Doc | null = null;
+	/**
+	 * Updates taken as they are (the server's, the offline copy's, replays) that `#accepted` has
+	 * not had yet: they are applied when the policy next needs it (the person's own change) or
+	 * when the page is idle, so opening a board does not apply its whole content twice before the
+	 * first drawing.
+	 */
+	#acceptedPending: Uint8Array[] = [];
+	#acceptedTimer: ReturnType<typeof setTimeout> | null = null;
 	#checkingLocal = false;
 	/** Updates the server could not store yet, with the local change count each covers. */
 	#held: Array<{ update: Uint8Array; upTo: number }> = [];
@@ -232,6 +242,60 @@ export class BoardProvider {
 		return new Promise((r) => this.#syncWaiters.push(r));
 	}
 
+	/**
+	 * Takes the board's stored state fetched some other way (the board page fetches it while the
+	 * connection opens; see stored-state.ts) as the server's: nothing of it is sent back or counted
+	 * as a local change. Skipped once the live sync has finished (it brought everything then).
+	 * Updates that do not apply are skipped. Returns how many were applied.
+	 */
+	applyStoredState(updates: readonly Uint8Array[]): number {
+		if (this.#destroyed || this.synced) return 0;
+		const doc = this.#doc;
+		const applied: Uint8Array[] = [];
+		let failed = false;
+		// What #onDocUpdate does with the server's changes is done here with the stored updates
+		// themselves: without it listening, Yjs need not encode the whole board again as one
+		// 'update' (other listeners, e.g. the offline copy once open, still get it).
+		doc.off('update', this.#onDocUpdate);
+		try {
+			doc.transact(() => {
+				for (const u of updates) {
+					try {
+						Y.applyUpdate(doc, u, this);
+						applied.push(u);
+					} catch (e) {
+						failed = true;
+						console.error('[board sync] a stored update could not be applied; the live sync brings the board:', e);
+					}
+				}
+			}, this);
+		} finally {
+			if (doc === this.#doc) doc.on('update', this.#onDocUpdate);
+		}
+		if (this.#accepted && applied.length) {
+			// One that failed may have left part of itself: then the policy's copy takes the whole document.
+			if (failed) this.#acceptedPending.push(Y.encodeStateAsUpdate(doc));
+			else this.#acceptedPending.push(...applied);
+			this.#scheduleAcceptedCatchUp();
+		}
+		return applied.length;
+	}
+
+	/**
+	 * Whether this browser holds an offline copy of a board, without opening it (ask before
+	 * creating the board's provider: opening the copy creates it). False where that cannot be
+	 * told quickly (no `indexedDB.databases()`).
+	 */
+	static async hasOfflineCopy(boardId: string): Promise<boolean> {
+		if (typeof indexedDB === 'undefined' || typeof indexedDB.databases !== 'function') return false;
+		try {
+			const name = offlineName(boardId, offlineGeneration(boardId));
+			return (await indexedDB.databases()).some((d) => d.name === name);
+		} catch {
+			return false;
+		}
+	}
+
 	/** Resolves when the offline copy (if any) has been loaded into the document. */
 	whenLocalLoaded(): Promise<void> {
 		return this.#offlineReady;
@@ -269,6 +333,9 @@ export class BoardProvider {
 		this.#socket?.removeAllListeners();
 		this.#socket = null;
 		if (this.#awarenessTimer) clearTimeout(this.#awarenessTimer);
+		if (this.#acceptedTimer) clearTimeout(this.#acceptedTimer);
+		this.#acceptedTimer = null;
+		this.#acceptedPending = [];
 		this.#doc.off('update', this.#onDocUpdate);
 		this.#watch.destroy();
 		this.awareness.off('update', this.#onAwarenessUpdate);
@@ -533,12 +600,18 @@ export class BoardProvider {
 			// The person's own change is tried against the board policy before it is sent, so they
 			// learn at once; everything else (the server, the offline copy, replays) is taken as is.
 			const own = origin !== this && origin !== this.#offline && origin !== REAPPLY_ORIGIN && !this.#checkingLocal;
-			const why = own ? this.#opts.check!(this.#accepted, update) : null;
-			if (why) {
-				this.#refuseLocally(why);
-				return;
+			if (own) {
+				this.#catchUpAccepted();
+				const why = this.#opts.check!(this.#accepted, update);
+				if (why) {
+					this.#refuseLocally(why);
+					return;
+				}
+				Y.applyUpdate(this.#accepted, update, this);
+			} else {
+				this.#acceptedPending.push(update);
+				this.#scheduleAcceptedCatchUp();
 			}
-			Y.applyUpdate(this.#accepted, update, this);
 		}
 		if (origin === this) return; // from the server
 		// What the offline copy loads may or may not be on the server already: it is sent (the
@@ -638,6 +711,28 @@ export class BoardProvider {
 		if (entries.length) this.#emit('set-aside', entries);
 	}
 
+	/** Brings `#accepted` up to date with the updates taken meanwhile. */
+	#catchUpAccepted() {
+		if (this.#acceptedTimer) clearTimeout(this.#acceptedTimer);
+		this.#acceptedTimer = null;
+		const accepted = this.#accepted;
+		const pending = this.#acceptedPending;
+		if (!accepted || pending.length === 0) return;
+		this.#acceptedPending = [];
+		Y.transact(accepted, () => {
+			for (const u of pending) Y.applyUpdate(accepted, u, this);
+		});
+	}
+
+	/** Catches `#accepted` up a moment later, when the page is likely idle (after the first drawing). */
+	#scheduleAcceptedCatchUp() {
+		if (this.#acceptedTimer || this.#destroyed) return;
+		this.#acceptedTimer = setTimeout(() => {
+			this.#acceptedTimer = null;
+			if (!this.#destroyed) this.#catchUpAccepted();
+		}, ACCEPTED_CATCH_UP_MS);
+	}
+
 	/**
 	 * The board policy refused the person's change before it was sent: the board goes back to the
 	 * last accepted state (nothing to ask the server), and the change goes to the tray.
@@ -648,6 +743,7 @@ export class BoardProvider {
 		const fresh = new Y.Doc();
 		this.#checkingLocal = true;
 		try {
+			this.#catchUpAccepted();
 			Y.applyUpdate(fresh, Y.encodeStateAsUpdate(this.#accepted!));
 		} finally {
 			this.#checkingLocal = false;
@@ -690,6 +786,7 @@ export class BoardProvider {
 			// Starts again from the server's state, which arrives as the fresh document's sync.
 			this.#accepted.destroy();
 			this.#accepted = new Y.Doc();
+			this.#acceptedPending = [];
 		}
 		this.#localSeq = 0;
 		this.#ackedSeq = 0;
